@@ -1,1 +1,52 @@
-int main() { return 0; }
+// hawser: dynamics of very long tethers in a planet's rotating frame.
+// The command line: parses arguments, calls one command, maps errors to exit codes.
+#include <CLI/CLI.hpp>
+
+#include <iostream>
+
+#include "solver/commands.hpp"
+#include "solver/errors.hpp"
+
+int main(int argc, char** argv) {
+  using namespace hawser;
+  CLI::App app{"hawser " HAWSER_VERSION ": dynamics of very long tethers (research tool, not a certification method)"};
+  app.require_subcommand(1);
+  app.set_version_flag("--version", std::string(HAWSER_VERSION));
+
+  CommonOptions opt;
+  bool json = false;
+  auto add_common = [&](CLI::App* sub) {
+    sub->add_option("SCENARIO", opt.scenario, "scenario file (YAML)")->required();
+    sub->add_option("--set", opt.overrides, "override a scenario key: key.path=value (repeatable)")
+        ->type_name("KEY=VALUE");
+  };
+  CLI::App* check = app.add_subcommand("check", "validate a scenario; list every problem with file:line:column and key");
+  add_common(check);
+  CLI::App* design = app.add_subcommand("design", "static design: taper, areas, masses, tensions, stresses, wave speeds");
+  add_common(design);
+  design->add_flag("--json", json, "print JSON (stable keys, units in the key names)");
+  CLI::App* keys = app.add_subcommand("keys", "print the reference of every scenario key with its unit and meaning");
+
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::ParseError& e) {
+    const int code = app.exit(e);
+    return code == 0 ? 0 : 2;
+  }
+  try {
+    if (check->parsed()) return cmd_check(opt);
+    if (design->parsed()) return cmd_design(opt, json);
+    if (keys->parsed()) return cmd_keys();
+  } catch (const InputError& e) {
+    std::cerr << e.what();
+    if (std::string(e.what()).back() != '\n') std::cerr << '\n';
+    return 2;
+  } catch (const IntegratorFailure& e) {
+    std::cerr << "error: integrator failed at t = " << e.time_s() << " s: " << e.what() << '\n';
+    return 4;
+  } catch (const std::exception& e) {
+    std::cerr << "error: " << e.what() << '\n';
+    return 1;
+  }
+  return 1;
+}

@@ -1,0 +1,19 @@
+#pragma once
+// The subcommands of the `hawser` program. Each returns the process exit code of the
+// command-line contract (0 done, 2 bad input, 3 stopped on a physical limit, 4 integrator
+// failure, 1 anything else) or throws one of the error types of solver/errors.hpp.
+#include <string>
+#include <vector>
+
+namespace hawser {
+
+struct CommonOptions {
+  std::string scenario;
+  std::vector<std::string> overrides;  // --set key.path=value
+};
+
+int cmd_check(const CommonOptions& opt);
+int cmd_design(const CommonOptions& opt, bool json);
+int cmd_keys();
+
+}  // namespace hawser

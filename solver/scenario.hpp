@@ -1,0 +1,56 @@
+#pragma once
+// A validated scenario: plain structs in SI units, the input of every command.
+#include <string>
+#include <vector>
+
+#include "models/material.hpp"
+#include "models/planet.hpp"
+#include "models/taper_design.hpp"
+#include "solver/scenario_values.hpp"
+
+namespace hawser {
+
+struct AnchorSpec {
+  double latitude_rad = 0.0;
+  double longitude_rad = 0.0;
+};
+
+struct MeshSpec {
+  int elements = 0;
+  bool geometric = false;               // geometric grading from the anchor
+  double first_element_length_m = 0.0;  // geometric only
+};
+
+/// The laboratory test bench (field.kind = uniform) or the planet's rotating frame.
+struct FieldSpec {
+  bool uniform = false;
+  double gravity_m_s2 = 0.0;   // uniform: along the cable, away from node 0
+  double cable_length_m = 0.0;
+  double cable_area_m2 = 0.0;
+  bool far_end_fixed = false;
+  double pretension_n = 0.0;
+};
+
+struct Scenario {
+  std::string name;
+  std::string file;          // as given on the command line
+  std::string text_as_run;   // YAML after --set, named entries written out
+  Planet planet;
+  bool j2 = false;
+  Material material;
+  TetherSpec tether;
+  CounterweightSpec counterweight;
+  AnchorSpec anchor;
+  MeshSpec mesh;
+  FieldSpec field;
+  ScenarioValues values;     // everything as validated, with locations
+};
+
+/// Reads, validates and checks a scenario; throws InputError listing every problem found
+/// (each with file:line:column and key path).
+Scenario load_scenario(const std::string& file, const std::vector<std::string>& overrides);
+/// Same from text (tests); `file` names it in messages.
+Scenario load_scenario_text(const std::string& text, const std::string& file,
+                            const std::vector<std::string>& overrides);
+
+}  // namespace hawser
