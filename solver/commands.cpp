@@ -1,10 +1,16 @@
 #include "solver/commands.hpp"
 
+#include <cstdio>
 #include <iostream>
 
 #include "solver/design_report.hpp"
 #include "solver/key_reference.hpp"
+#include "solver/errors.hpp"
+#include "solver/initial_state.hpp"
+#include "solver/progress.hpp"
+#include "solver/result_recorder.hpp"
 #include "solver/scenario.hpp"
+#include "solver/simulation.hpp"
 
 namespace hawser {
 
@@ -32,6 +38,55 @@ int cmd_design(const CommonOptions& opt, bool json) {
 
 int cmd_keys() {
   std::cout << KeyReference::builtin().describe();
+  return 0;
+}
+
+namespace {
+std::string default_output(const std::string& scenario) {
+  std::string base = scenario.substr(scenario.find_last_of('/') + 1);
+  const auto dot = base.rfind('.');
+  if (dot != std::string::npos && dot > 0) base.resize(dot);
+  return base + ".h5";
+}
+
+void print_summary(const RunSummary& s, const std::string& file) {
+  std::printf("hawser run: %s at t = %.6g s (%.4g h), %zu outputs, wall %.3g s\n", s.status.c_str(), s.end_time_s,
+              s.end_time_s / 3600.0, s.outputs, s.wall_s);
+  if (!s.message.empty()) std::printf("  %s\n", s.message.c_str());
+  std::printf("  solver: %ld steps, %ld rhs evaluations, %ld Jacobian evaluations, %ld linear setups,\n"
+              "          %ld error-test failures, %ld nonlinear iterations, %ld nonlinear failures\n",
+              s.stats.steps, s.stats.rhs_evals, s.stats.jac_evals, s.stats.linear_setups, s.stats.error_test_failures,
+              s.stats.nonlinear_iterations, s.stats.nonlinear_failures);
+  std::printf("  peak tension %.6g N in element %zu at t = %.6g s; smallest safety factor %.4g\n", s.peak_tension_n,
+              s.peak_tension_element, s.peak_tension_time_s, s.min_safety_factor);
+  std::printf("  peak east-west deflection %.6g m (node %zu), north-south %.6g m (node %zu)\n", s.peak_east_west_m,
+              s.peak_east_west_node, s.peak_north_south_m, s.peak_north_south_node);
+  if (s.max_slack_elements > 0)
+    std::printf("  slack elements: up to %zu at once, first at t = %.6g s\n", s.max_slack_elements, s.first_slack_time_s);
+  for (const auto& r : s.ruptures)
+    std::printf("  element %zu reached its ultimate strength (%.4g Pa) at t = %.6g s\n", r.element, r.stress_pa, r.time_s);
+  std::printf("  results: %s\n", file.c_str());
+}
+}  // namespace
+
+int cmd_run(const CommonOptions& opt, std::string output) {
+  const Scenario sc = load_scenario(opt.scenario, opt.overrides);
+  if (!sc.simulation.given)
+    throw InputError("error: " + sc.values.where("") + ": simulation: missing: `hawser run` needs a simulation "
+                     "block (duration, output_interval; see `hawser keys`)\n");
+  if (output.empty()) output = default_output(opt.scenario);
+  const TetherModel model = build_model(sc);
+  TetherSystem system(model);
+  const std::vector<double> y0 = initial_state(system, sc.initial);
+  RunOptions ro = run_options(sc.simulation, system.layout());
+  ro.flush_every = sc.output.flush_every;
+  ro.progress = stderr_is_terminal();
+  ResultRecorder recorder(output, sc, model, output_nodes(model.nodes(), sc.output));
+  const RunSummary summary = run_simulation(system, y0, ro, recorder);
+  recorder.finish(summary);
+  print_summary(summary, output);
+  if (summary.status == "stopped") return 3;
+  if (summary.status == "failed") return 4;
   return 0;
 }
 

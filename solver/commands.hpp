@@ -15,5 +15,7 @@ struct CommonOptions {
 int cmd_check(const CommonOptions& opt);
 int cmd_design(const CommonOptions& opt, bool json);
 int cmd_keys();
+/// `output` empty: <scenario file name without .yaml>.h5 in the current directory.
+int cmd_run(const CommonOptions& opt, std::string output);
 
 }  // namespace hawser

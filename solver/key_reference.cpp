@@ -36,7 +36,7 @@ std::vector<std::string> string_list(const YAML::Node& n) {
 
 KeyReference KeyReference::from_yaml(const std::string& text) {
   static const char* allowed_types[] = {"quantity", "integer", "boolean", "string", "choice",
-                                        "map", "list", "name_or_map", "vector3"};
+                                        "map", "list", "name_or_map", "vector3", "integer_list"};
   KeyReference ref;
   const YAML::Node root = YAML::Load(text);
   for (const auto& entry : root["keys"]) {
@@ -72,9 +72,12 @@ KeyReference KeyReference::from_yaml(const std::string& text) {
     ref.index_[k.path] = ref.keys_.size();
     ref.keys_.push_back(std::move(k));
   }
-  for (const auto& k : ref.keys_)
-    if (!k.parent().empty() && !ref.find(k.parent()))
+  for (const auto& k : ref.keys_) {
+    std::string parent = k.parent();  // "climbers[]" for the keys of a list's items
+    if (parent.size() > 2 && parent.compare(parent.size() - 2, 2, "[]") == 0) parent.resize(parent.size() - 2);
+    if (!parent.empty() && !ref.find(parent))
       throw std::runtime_error("key reference: " + k.path + " has no parent entry");
+  }
   return ref;
 }
 

@@ -26,6 +26,10 @@ int main(int argc, char** argv) {
   add_common(design);
   design->add_flag("--json", json, "print JSON (stable keys, units in the key names)");
   CLI::App* keys = app.add_subcommand("keys", "print the reference of every scenario key with its unit and meaning");
+  CLI::App* run = app.add_subcommand("run", "time-domain simulation, written to an HDF5 result file");
+  add_common(run);
+  std::string output;
+  run->add_option("-o,--output", output, "result file (default: <scenario name>.h5 in the current directory)");
 
   try {
     app.parse(argc, argv);
@@ -37,6 +41,7 @@ int main(int argc, char** argv) {
     if (check->parsed()) return cmd_check(opt);
     if (design->parsed()) return cmd_design(opt, json);
     if (keys->parsed()) return cmd_keys();
+    if (run->parsed()) return cmd_run(opt, output);
   } catch (const InputError& e) {
     std::cerr << e.what();
     if (std::string(e.what()).back() != '\n') std::cerr << '\n';

@@ -1,5 +1,6 @@
 #pragma once
 // A validated scenario: plain structs in SI units, the input of every command.
+#include <array>
 #include <string>
 #include <vector>
 
@@ -31,6 +32,43 @@ struct FieldSpec {
   double pretension_n = 0.0;
 };
 
+struct SimulationSpec {
+  bool given = false;           // the scenario has a simulation block
+  double duration_s = 0.0;
+  double output_interval_s = 0.0;
+  std::string method;           // bdf | adams | erk
+  double rtol = 0.0;
+  double atol_position_m = 0.0;
+  double atol_velocity_m_s = 0.0;
+  double max_step_s = 0.0;      // 0: none
+  bool stop_on_rupture = true;
+};
+
+/// A half-sine displacement over [from, to] of the distance from node 0 along the reference.
+struct DisplacementSpec {
+  enum class Direction { east, north, along };
+  Direction direction = Direction::east;
+  double amplitude_m = 0.0;
+  double from_m = 0.0;
+  double to_m = -1.0;           // < 0: the far end
+};
+
+struct KickSpec {
+  int node = 0;
+  std::array<double, 3> velocity_m_s{};  // rotating frame (x up, y east, z north)
+};
+
+struct InitialSpec {
+  std::vector<DisplacementSpec> displacements;
+  std::vector<KickSpec> kicks;
+};
+
+struct OutputSpec {
+  int node_stride = 1;
+  std::vector<int> nodes;       // explicit choice; empty: use the stride
+  int flush_every = 10;         // outputs between flushes
+};
+
 struct Scenario {
   std::string name;
   std::string file;          // as given on the command line
@@ -43,6 +81,9 @@ struct Scenario {
   AnchorSpec anchor;
   MeshSpec mesh;
   FieldSpec field;
+  SimulationSpec simulation;
+  InitialSpec initial;
+  OutputSpec output;
   ScenarioValues values;     // everything as validated, with locations
 };
 

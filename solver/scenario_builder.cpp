@@ -30,6 +30,69 @@ Material build_material(const ScenarioValues& v) {
   return m;
 }
 
+SimulationSpec build_simulation(const ScenarioValues& v) {
+  SimulationSpec sim;
+  sim.given = v.has("simulation");
+  sim.method = v.text("simulation.method");
+  sim.rtol = v.quantity("simulation.rtol");
+  sim.atol_position_m = v.quantity("simulation.atol_position");
+  sim.atol_velocity_m_s = v.quantity("simulation.atol_velocity");
+  sim.max_step_s = v.quantity("simulation.max_step");
+  sim.stop_on_rupture = v.boolean("simulation.stop_on_rupture");
+  if (sim.given) {
+    sim.duration_s = v.quantity("simulation.duration");
+    sim.output_interval_s = v.quantity("simulation.output_interval");
+  }
+  return sim;
+}
+
+/// Initial-state and output settings; checks that need the tether's length and node count.
+void build_initial_and_output(const ScenarioValues& v, double length_m, int elements, bool far_end_fixed,
+                              Scenario& s, std::vector<Problem>& problems) {
+  const int last_free = far_end_fixed ? elements - 1 : elements;
+  const long long nd = v.has("initial.displacements") ? v.integer("initial.displacements") : 0;
+  for (long long i = 0; i < nd; ++i) {
+    const std::string p = "initial.displacements[" + std::to_string(i) + "]";
+    DisplacementSpec d;
+    const std::string dir = v.text(p + ".direction");
+    d.direction = dir == "east" ? DisplacementSpec::Direction::east
+                  : dir == "north" ? DisplacementSpec::Direction::north
+                                   : DisplacementSpec::Direction::along;
+    d.amplitude_m = v.quantity(p + ".amplitude");
+    d.from_m = v.quantity(p + ".from");
+    d.to_m = v.has(p + ".to") ? v.quantity(p + ".to") : length_m;
+    if (d.to_m > length_m * (1 + 1e-12))
+      problems.push_back({v.where(p + ".to"), p + ".to", "beyond the far end of the tether (" +
+                                                             std::to_string(length_m / 1e3) + " km)"});
+    if (d.from_m >= d.to_m) problems.push_back({v.where(p + ".from"), p + ".from", "must lie below `to`"});
+    s.initial.displacements.push_back(d);
+  }
+  const long long nk = v.has("initial.kicks") ? v.integer("initial.kicks") : 0;
+  for (long long i = 0; i < nk; ++i) {
+    const std::string p = "initial.kicks[" + std::to_string(i) + "]";
+    KickSpec k;
+    k.node = static_cast<int>(v.integer(p + ".node"));
+    const auto& vel = v.at(p + ".velocity").vector;
+    for (int a = 0; a < 3; ++a) k.velocity_m_s[a] = vel[a];
+    if (k.node > last_free)
+      problems.push_back({v.where(p + ".node"), p + ".node",
+                          "node " + std::to_string(k.node) + " is not a free node (free nodes are 1.." +
+                              std::to_string(last_free) + ")"});
+    s.initial.kicks.push_back(k);
+  }
+  s.output.node_stride = static_cast<int>(v.integer("output.node_stride"));
+  s.output.flush_every = static_cast<int>(v.integer("output.flush_every"));
+  if (v.has("output.nodes")) {
+    for (double x : v.at("output.nodes").vector) {
+      const int node = static_cast<int>(x);
+      if (node > elements)
+        problems.push_back({v.where("output.nodes"), "output.nodes",
+                            "node " + std::to_string(node) + " does not exist (nodes are 0.." + std::to_string(elements) + ")"});
+      s.output.nodes.push_back(node);
+    }
+  }
+}
+
 Scenario build(const ReadScenario& read, const std::string& file) {
   const ScenarioValues& v = read.values;
   std::vector<Problem> problems;
@@ -45,6 +108,7 @@ Scenario build(const ReadScenario& read, const std::string& file) {
   s.mesh.geometric = v.text("mesh.grading") == "geometric";
   if (s.mesh.geometric) s.mesh.first_element_length_m = v.quantity("mesh.first_element_length");
 
+  s.simulation = build_simulation(v);
   if (s.field.uniform) {
     s.field.gravity_m_s2 = v.quantity("field.gravity");
     s.field.cable_length_m = v.quantity("field.cable_length");
@@ -55,6 +119,7 @@ Scenario build(const ReadScenario& read, const std::string& file) {
         s.mesh.elements > 1)
       problems.push_back({v.where("mesh.first_element_length"), "mesh.first_element_length",
                           "geometric grading must grow toward the far end: N times the first length exceeds the cable length"});
+    build_initial_and_output(v, s.field.cable_length_m, s.mesh.elements, s.field.far_end_fixed, s, problems);
     if (!problems.empty()) throw InputError(format_problems(problems));
     return s;
   }
@@ -91,6 +156,7 @@ Scenario build(const ReadScenario& read, const std::string& file) {
       s.mesh.first_element_length_m * s.mesh.elements > (design.top_radius() - design.base_radius()) && s.mesh.elements > 1)
     problems.push_back({v.where("mesh.first_element_length"), "mesh.first_element_length",
                         "geometric grading must grow toward the top: N times the first length exceeds the tether length"});
+  build_initial_and_output(v, design.top_radius() - design.base_radius(), s.mesh.elements, false, s, problems);
   if (!problems.empty()) throw InputError(format_problems(problems));
   return s;
 }

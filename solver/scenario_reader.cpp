@@ -133,6 +133,27 @@ class Validator {
       }
       return;
     }
+    if (spec.type == "vector3" || spec.type == "integer_list") {
+      if (!node.IsSequence() || (spec.type == "vector3" && node.size() != 3))
+        return problem(w, display, spec.type == "vector3" ? "expected a list of three values [x, y, z]" : "expected a list of whole numbers [1, 5, 9]");
+      for (const auto& item : node) {
+        if (!item.IsScalar()) return problem(w, display, "expected plain values in the list");
+        if (spec.type == "vector3") {
+          double x = 0;
+          std::string why;
+          if (!units.to_si(item.Scalar(), spec.dimension, x, why)) return problem(w, display, why);
+          v.vector.push_back(x);
+        } else {
+          char* end = nullptr;
+          const long long n = std::strtoll(item.Scalar().c_str(), &end, 10);
+          if (item.Scalar().empty() || *end != '\0' || n < 0)
+            return problem(w, display, "expected whole numbers >= 0, got '" + item.Scalar() + "'");
+          v.vector.push_back(static_cast<double>(n));
+        }
+      }
+      values_.set(display, v);
+      return;
+    }
     if (!node.IsScalar()) {
       problem(w, display, "expected a single value, got a " + std::string(node.IsMap() ? "mapping" : "list"));
       return;
@@ -173,8 +194,6 @@ class Validator {
         return problem(w, display, why);
       }
       if (!check_limits(spec, v.number, w, display)) return;
-    } else if (spec.type == "vector3") {
-      return;  // handled above (not scalar)
     }
     values_.set(display, v);
   }
@@ -228,6 +247,7 @@ class Validator {
       if (k.type != "map" || k.required || !k.required_when_key.empty() || k.path.find('[') != std::string::npos) continue;
       if (values_.has(k.path) || !(k.parent().empty() || values_.has(k.parent()))) continue;
       present_maps_.push_back({k.path, k.path});
+      implicit_maps_.insert(k.path);
     }
     // Defaults first, so that required_when conditions see them.
     for (const auto& m : present_maps_) {
@@ -253,6 +273,7 @@ class Validator {
       }
     }
     for (const auto& m : present_maps_) {
+      if (implicit_maps_.count(m.second)) continue;  // nothing is required of an absent block
       for (const KeySpec* c : ref_.children(m.first)) {
         const std::string d = join(m.second, c->leaf());
         if (values_.has(d)) continue;
@@ -283,6 +304,7 @@ class Validator {
   std::string file_, table_file_;
   bool in_table_ = false;
   std::vector<std::pair<std::string, std::string>> present_maps_;  // (pattern, display)
+  std::set<std::string> implicit_maps_;  // absent optional maps standing for their defaults
 
  public:
   std::map<std::string, YAML::Node> resolved_;  // display path of a named entry -> its table node

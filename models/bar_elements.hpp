@@ -1,0 +1,45 @@
+#pragma once
+// Tension-only elastic bars with Kelvin-Voigt damping joining consecutive nodes.
+//
+// Element e joins nodes e and e+1; d = x_{e+1} - x_e, l = |d|, n = d / l,
+// ldot = n . (v_{e+1} - v_e). Tension (> 0 when stretched):
+//   T = k (l - L0) + c ldot   if l > L0 and that is > 0,   else 0 (slack carries nothing),
+//   k = E A / L0 [N/m],  c = tau k [N s/m] (tau: the material's retardation time).
+// Force on node e: +T n; on node e+1: -T n.
+// Jacobian with K = dF_e/dd = k n n^T + (T / l)(I - n n^T) + (c / l) n w^T (I - n n^T),
+// w = v_{e+1} - v_e, and C = c n n^T: dF_e/dx_{e+1} = K, dF_e/dx_e = -K, dF_{e+1} = -dF_e.
+// (Chrono's cable and bar elements follow the same construction; the geometric stiffness
+// T/l (I - n n^T) is what carries lateral waves.)
+#include <vector>
+
+#include "models/force_model.hpp"
+
+namespace hawser {
+
+class BarElements : public ForceModel {
+ public:
+  /// Per element: axial stiffness EA [N], unstretched length L0 [m], retardation time tau [s].
+  BarElements(std::vector<double> ea_n, std::vector<double> l0_m, std::vector<double> tau_s);
+  std::string name() const override { return "bar elements"; }
+  void add_forces(const TetherState& s, Matrix3X& f) const override;
+  void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
+  double energy(const TetherState& s) const override;           // strain energy of taut elements
+  double dissipated_power(const TetherState& s) const override;  // c ldot^2 while taut
+
+  /// Tension of every element at state s [N] (0 when slack).
+  void tensions(const TetherState& s, std::vector<double>& t) const;
+  std::size_t size() const { return l0_.size(); }
+  double l0(std::size_t e) const { return l0_[e]; }
+  double ea(std::size_t e) const { return ea_[e]; }
+  double damping(std::size_t e) const { return c_[e]; }  // c [N s/m]
+
+ private:
+  struct Kinematics {
+    Eigen::Vector3d n, w;
+    double l, ldot, tension;  // tension clamped at 0
+  };
+  Kinematics kinematics(const TetherState& s, std::size_t e) const;
+  std::vector<double> ea_, l0_, c_;  // c = tau * EA / L0 [N s/m]
+};
+
+}  // namespace hawser

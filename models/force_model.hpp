@@ -1,0 +1,63 @@
+#pragma once
+// The one narrow interface through which every physical model acts on the tether.
+//
+// A model sees the positions and velocities of all nodes 0..N in the rotating frame
+// (prescribed nodes included) and adds its forces [N] on every node; beside them it adds
+// its analytic Jacobian, the derivatives of those forces with respect to the positions and
+// velocities of the node itself and of its two neighbours (the only couplings a bar chain
+// has, which keeps the system's Jacobian banded). Models also report the energy they
+// store and the power they dissipate, for the energy bookkeeping of a run.
+#include <Eigen/Core>
+#include <string>
+#include <vector>
+
+namespace hawser {
+
+using Matrix3X = Eigen::Matrix<double, 3, Eigen::Dynamic>;
+
+/// Positions [m] and velocities [m/s] of all nodes in the rotating frame at time t [s].
+struct TetherState {
+  double t;
+  const Matrix3X& x;
+  const Matrix3X& v;
+  const Eigen::VectorXd& mass;  // node masses [kg]
+};
+
+/// dF_i/dx_j and dF_i/dv_j for j = i-1, i, i+1 ([0], [1], [2]), per node i, in N/m and N s/m.
+class NodeJacobian {
+ public:
+  explicit NodeJacobian(std::size_t nodes) { resize(nodes); }
+  void resize(std::size_t nodes) {
+    for (auto& b : dx_) b.assign(nodes, Eigen::Matrix3d::Zero());
+    for (auto& b : dv_) b.assign(nodes, Eigen::Matrix3d::Zero());
+  }
+  void set_zero() {
+    for (auto& b : dx_) for (auto& m : b) m.setZero();
+    for (auto& b : dv_) for (auto& m : b) m.setZero();
+  }
+  std::size_t nodes() const { return dx_[1].size(); }
+  /// Block of dF_i/dx_j; j must be i-1, i or i+1.
+  Eigen::Matrix3d& dx(std::size_t i, std::size_t j) { return dx_[j + 1 - i][i]; }
+  Eigen::Matrix3d& dv(std::size_t i, std::size_t j) { return dv_[j + 1 - i][i]; }
+  const Eigen::Matrix3d& dx(std::size_t i, std::size_t j) const { return dx_[j + 1 - i][i]; }
+  const Eigen::Matrix3d& dv(std::size_t i, std::size_t j) const { return dv_[j + 1 - i][i]; }
+
+ private:
+  std::vector<Eigen::Matrix3d> dx_[3], dv_[3];
+};
+
+class ForceModel {
+ public:
+  virtual ~ForceModel() = default;
+  virtual std::string name() const = 0;
+  /// F(:, i) += force on node i [N].
+  virtual void add_forces(const TetherState& s, Matrix3X& f) const = 0;
+  /// Adds this model's derivatives of the forces.
+  virtual void add_jacobian(const TetherState& s, NodeJacobian& j) const = 0;
+  /// Energy stored by this model (potential or strain) [J]; 0 for non-conservative models.
+  virtual double energy(const TetherState&) const { return 0.0; }
+  /// Power this model removes from the tether's mechanical energy [W] (>= 0 for dampers).
+  virtual double dissipated_power(const TetherState&) const { return 0.0; }
+};
+
+}  // namespace hawser

@@ -1,0 +1,30 @@
+#pragma once
+// The exact discrete equilibrium (physics.md section 3): the reference geometry is taken as
+// the stretched state at rest; each element's tension follows from the node force balance
+// worked down from the far end,
+//   T_{N-1} = F_N . a            (free far end: the body force on the top node),
+//   T_{e-1} = T_e + F_e . a      (node e, 0 < e < N),
+// with a the unit vector along the tether and F the body forces at rest; then
+//   L0_e = l_e / (1 + T_e / (E A_e)),
+// so that a run started there stays there to round-off. A far end held fixed (test bench)
+// carries the scenario's pretension in its last element instead.
+#include <string>
+#include <vector>
+
+#include "models/force_model.hpp"
+#include "solver/mesh.hpp"
+
+namespace hawser {
+
+struct Equilibrium {
+  std::vector<double> tension_n;  // (N) [N]
+  std::vector<double> l0_m;       // (N) unstretched lengths [m]
+  std::vector<double> s0_m;       // (N+1) unstretched arc length from node 0 [m]
+};
+
+/// `body` are the force models other than the bars, evaluated at rest on the reference
+/// geometry. Throws InputError if some element would have to push (no tension equilibrium).
+Equilibrium solve_equilibrium(const Mesh& mesh, double youngs_modulus_pa, double pretension_n,
+                              const std::vector<const ForceModel*>& body);
+
+}  // namespace hawser

@@ -1,0 +1,740 @@
+// H5Writer and the ordered-commit file driver under it. Why the driver exists and what order it
+// commits in is explained in h5_writer.hpp; this file is the mechanism.
+#include "solver/h5_writer.hpp"
+
+#include <fcntl.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <cerrno>
+#include <cstdlib>
+#include <cstring>
+#include <limits>
+#include <map>
+#include <new>
+#include <stdexcept>
+#include <utility>
+
+namespace hawser {
+namespace {
+
+// =============================================================================================
+// Ordered-commit file driver (HDF5 1.10 virtual file layer).
+//
+// Bytes at or past `committed_end` (the end of the file as of the last commit) are written to
+// disk at once: no committed metadata refers to them. Writes below it overwrite something the
+// committed file uses; they are held in `held` and written by commit() in dependency order.
+// The end of allocation never drops below `committed_end`, so the library cannot hand out
+// committed space again.
+// =============================================================================================
+
+struct DriverConfig {
+  hbool_t sync;  // fdatasync between commit steps
+};
+
+struct HeldWrite {
+  std::vector<unsigned char> bytes;
+  H5FD_mem_t type;  // what the library says it is writing (superblock, B-tree, heap, header)
+};
+
+struct CommitState {
+  std::string name;
+  int fd = -1;
+  dev_t device = 0;
+  ino_t inode = 0;
+  bool writable = false;
+  bool sync = false;
+  haddr_t eoa = 0;            // end of allocated space, as the library sets it (bytes)
+  haddr_t physical_end = 0;   // size of the file on disk (bytes)
+  haddr_t committed_end = 0;  // end of the file as of the last commit (bytes)
+  std::map<haddr_t, HeldWrite> held;  // non-overlapping, keyed by address
+};
+
+// HDF5 hands us back the H5FD_t it got from open(); it sits at offset 0 of this
+// standard-layout struct, so the two pointers convert.
+struct CommitFile {
+  H5FD_t pub;
+  CommitState* state;
+};
+
+CommitState& state_of(const H5FD_t* file) {
+  return *reinterpret_cast<const CommitFile*>(file)->state;
+}
+
+herr_t push_error(const char* func, hid_t minor, const std::string& what) {
+  H5Epush2(H5E_DEFAULT, __FILE__, func, __LINE__, H5E_ERR_CLS, H5E_VFL, minor, "%s",
+           what.c_str());
+  return -1;
+}
+
+std::string errno_text(const char* op, const std::string& name) {
+  return std::string(op) + " '" + name + "': " + std::strerror(errno);
+}
+
+bool pwrite_all(int fd, const unsigned char* data, std::size_t size, haddr_t addr) {
+  while (size > 0) {
+    const ssize_t n = ::pwrite(fd, data, size, static_cast<off_t>(addr));
+    if (n < 0) {
+      if (errno == EINTR) continue;
+      return false;
+    }
+    data += n;
+    size -= static_cast<std::size_t>(n);
+    addr += static_cast<haddr_t>(n);
+  }
+  return true;
+}
+
+// Reads up to `size` bytes; bytes past the end of the file read as zero.
+bool pread_all(int fd, unsigned char* data, std::size_t size, haddr_t addr) {
+  while (size > 0) {
+    const ssize_t n = ::pread(fd, data, size, static_cast<off_t>(addr));
+    if (n < 0) {
+      if (errno == EINTR) continue;
+      return false;
+    }
+    if (n == 0) {
+      std::memset(data, 0, size);
+      return true;
+    }
+    data += n;
+    size -= static_cast<std::size_t>(n);
+    addr += static_cast<haddr_t>(n);
+  }
+  return true;
+}
+
+// Keep the newest bytes for [addr, addr + size): trim or split every held write it overlaps.
+void hold(CommitState& s, haddr_t addr, const unsigned char* data, std::size_t size,
+          H5FD_mem_t type) {
+  const haddr_t end = addr + size;
+  auto it = s.held.lower_bound(addr);
+  if (it != s.held.begin()) {
+    const auto prev = std::prev(it);
+    if (prev->first + prev->second.bytes.size() > addr) it = prev;
+  }
+  while (it != s.held.end() && it->first < end) {
+    const haddr_t old_start = it->first;
+    const haddr_t old_end = old_start + it->second.bytes.size();
+    HeldWrite old = std::move(it->second);
+    it = s.held.erase(it);
+    if (old_start < addr) {
+      s.held.emplace(old_start,
+                     HeldWrite{{old.bytes.begin(), old.bytes.begin() + (addr - old_start)},
+                               old.type});
+    }
+    if (old_end > end) {
+      s.held.emplace(end, HeldWrite{{old.bytes.begin() + (end - old_start), old.bytes.end()},
+                                    old.type});
+    }
+  }
+  s.held.emplace(addr, HeldWrite{{data, data + size}, type});
+}
+
+// Copy held bytes that fall in [addr, addr + size) over `out`.
+void overlay_held(const CommitState& s, haddr_t addr, std::size_t size, unsigned char* out) {
+  const haddr_t end = addr + size;
+  auto it = s.held.lower_bound(addr);
+  if (it != s.held.begin()) --it;
+  for (; it != s.held.end() && it->first < end; ++it) {
+    const haddr_t lo = std::max(addr, it->first);
+    const haddr_t hi = std::min<haddr_t>(end, it->first + it->second.bytes.size());
+    if (lo < hi) {
+      std::memcpy(out + (lo - addr), it->second.bytes.data() + (lo - it->first), hi - lo);
+    }
+  }
+}
+
+// Commit order of a held overwrite: pointees before pointers, lengths last.
+struct CommitRank {
+  int step;  // 0 superblock, 1 local heaps, 2 B-tree nodes, 3 symbol nodes, 4 other, 5 headers
+  int sub;   // within a step: heap data before heap prefix; B-tree parents before children
+};
+
+CommitRank commit_rank(const HeldWrite& w) {
+  const auto& b = w.bytes;
+  const auto signature = [&b](const char* sig) {
+    return b.size() >= 4 && std::memcmp(b.data(), sig, 4) == 0;
+  };
+  switch (w.type) {
+    case H5FD_MEM_SUPER:
+      return {0, 0};
+    case H5FD_MEM_LHEAP:
+      return {1, signature("HEAP") ? 1 : 0};
+    case H5FD_MEM_BTREE:
+      // v1 B-tree node: "TREE", node type, level (byte 5); higher levels first.
+      if (signature("TREE") && b.size() > 5) return {2, 255 - static_cast<int>(b[5])};
+      return {3, 0};
+    case H5FD_MEM_OHDR:
+      return {5, 0};
+    default:
+      return {4, 0};
+  }
+}
+
+bool barrier(const CommitState& s) { return !s.sync || ::fdatasync(s.fd) == 0; }
+
+// Make the file on disk the library's current view, one readable state after another.
+herr_t commit(CommitState& s) {
+  static const char* const func = "hawser commit";
+  if (!s.writable) return 0;
+  // 1. New bytes are already written; size the file to the end of allocation, so the new
+  //    superblock's end is never past the end of the file, and make them durable.
+  if (s.physical_end != s.eoa) {
+    if (::ftruncate(s.fd, static_cast<off_t>(s.eoa)) != 0) {
+      return push_error(func, H5E_WRITEERROR, errno_text("ftruncate", s.name));
+    }
+    s.physical_end = s.eoa;
+  }
+  if (s.held.empty()) {
+    s.committed_end = s.eoa;
+    return 0;
+  }
+  if (!barrier(s)) return push_error(func, H5E_WRITEERROR, errno_text("fdatasync", s.name));
+
+  // 2. Overwrites in dependency order; object headers (dataset lengths) last, and among them
+  //    the highest address first, so the first-created series grows last.
+  struct Step {
+    CommitRank rank;
+    haddr_t addr;
+    const HeldWrite* write;
+  };
+  std::vector<Step> steps;
+  steps.reserve(s.held.size());
+  for (const auto& [addr, w] : s.held) steps.push_back({commit_rank(w), addr, &w});
+  std::stable_sort(steps.begin(), steps.end(), [](const Step& a, const Step& b) {
+    if (a.rank.step != b.rank.step) return a.rank.step < b.rank.step;
+    if (a.rank.sub != b.rank.sub) return a.rank.sub < b.rank.sub;
+    return a.rank.step == 5 ? a.addr > b.addr : a.addr < b.addr;
+  });
+  for (std::size_t i = 0; i < steps.size(); ++i) {
+    const bool new_group = i > 0 && (steps[i].rank.step != steps[i - 1].rank.step ||
+                                     steps[i].rank.sub != steps[i - 1].rank.sub);
+    if (new_group && !barrier(s)) {
+      return push_error(func, H5E_WRITEERROR, errno_text("fdatasync", s.name));
+    }
+    const auto& bytes = steps[i].write->bytes;
+    if (!pwrite_all(s.fd, bytes.data(), bytes.size(), steps[i].addr)) {
+      return push_error(func, H5E_WRITEERROR, errno_text("pwrite", s.name));
+    }
+  }
+  if (!barrier(s)) return push_error(func, H5E_WRITEERROR, errno_text("fdatasync", s.name));
+  s.held.clear();
+  s.committed_end = s.eoa;
+  return 0;
+}
+
+// ---- H5FD_class_t callbacks -----------------------------------------------------------------
+
+void* cf_fapl_copy(const void* info) {
+  auto* copy = static_cast<DriverConfig*>(std::malloc(sizeof(DriverConfig)));
+  if (copy != nullptr) *copy = *static_cast<const DriverConfig*>(info);
+  return copy;
+}
+
+herr_t cf_fapl_free(void* info) {
+  std::free(info);
+  return 0;
+}
+
+void* cf_fapl_get(H5FD_t* file) {
+  const DriverConfig config{state_of(file).sync};
+  return cf_fapl_copy(&config);
+}
+
+H5FD_t* cf_open(const char* name, unsigned flags, hid_t fapl, haddr_t /*maxaddr*/) {
+  if (name == nullptr || *name == '\0') {
+    push_error("hawser open", H5E_BADVALUE, "empty file name");
+    return nullptr;
+  }
+  int oflags = (flags & H5F_ACC_RDWR) ? O_RDWR : O_RDONLY;
+  if (flags & H5F_ACC_TRUNC) oflags |= O_TRUNC;
+  if (flags & H5F_ACC_CREAT) oflags |= O_CREAT;
+  if (flags & H5F_ACC_EXCL) oflags |= O_EXCL;
+  const int fd = ::open(name, oflags | O_CLOEXEC, 0666);
+  if (fd < 0) {
+    push_error("hawser open", H5E_CANTOPENFILE, errno_text("open", name));
+    return nullptr;
+  }
+  struct stat info {};
+  if (::fstat(fd, &info) != 0) {
+    push_error("hawser open", H5E_CANTOPENFILE, errno_text("fstat", name));
+    ::close(fd);
+    return nullptr;
+  }
+  auto* state = new (std::nothrow) CommitState;
+  auto* file = new (std::nothrow) CommitFile{};
+  if (state == nullptr || file == nullptr) {
+    delete state;
+    delete file;
+    ::close(fd);
+    push_error("hawser open", H5E_CANTALLOC, "out of memory");
+    return nullptr;
+  }
+  const auto* config = static_cast<const DriverConfig*>(H5Pget_driver_info(fapl));
+  state->name = name;
+  state->fd = fd;
+  state->device = info.st_dev;
+  state->inode = info.st_ino;
+  state->writable = (flags & H5F_ACC_RDWR) != 0;
+  state->sync = config != nullptr && config->sync;
+  state->physical_end = static_cast<haddr_t>(info.st_size);
+  state->committed_end = state->physical_end;
+  file->state = state;
+  return &file->pub;
+}
+
+herr_t cf_close(H5FD_t* file) {
+  auto* cf = reinterpret_cast<CommitFile*>(file);
+  herr_t status = commit(*cf->state);
+  if (::close(cf->state->fd) != 0) {
+    status = push_error("hawser close", H5E_CANTCLOSEFILE, errno_text("close", cf->state->name));
+  }
+  delete cf->state;
+  delete cf;
+  return status;
+}
+
+int cf_cmp(const H5FD_t* a, const H5FD_t* b) {
+  const auto ka = std::make_pair(state_of(a).device, state_of(a).inode);
+  const auto kb = std::make_pair(state_of(b).device, state_of(b).inode);
+  return ka < kb ? -1 : (kb < ka ? 1 : 0);
+}
+
+herr_t cf_query(const H5FD_t* /*file*/, unsigned long* flags) {
+  // No metadata accumulator and no aggregation blocks: every metadata object arrives as its
+  // own write, typed, which the commit order needs.
+  *flags = H5FD_FEAT_DATA_SIEVE | H5FD_FEAT_DEFAULT_VFD_COMPATIBLE;
+  return 0;
+}
+
+haddr_t cf_get_eoa(const H5FD_t* file, H5FD_mem_t /*type*/) { return state_of(file).eoa; }
+
+herr_t cf_set_eoa(H5FD_t* file, H5FD_mem_t /*type*/, haddr_t addr) {
+  CommitState& s = state_of(file);
+  // Freeing space at the end of the file would let the library allocate committed bytes again.
+  s.eoa = s.writable ? std::max(addr, s.committed_end) : addr;
+  return 0;
+}
+
+haddr_t cf_get_eof(const H5FD_t* file, H5FD_mem_t /*type*/) {
+  return state_of(file).physical_end;
+}
+
+herr_t cf_get_handle(H5FD_t* file, hid_t /*fapl*/, void** handle) {
+  *handle = &state_of(file).fd;
+  return 0;
+}
+
+herr_t cf_read(H5FD_t* file, H5FD_mem_t /*type*/, hid_t /*dxpl*/, haddr_t addr, size_t size,
+               void* buf) {
+  const CommitState& s = state_of(file);
+  auto* out = static_cast<unsigned char*>(buf);
+  const std::size_t on_disk =
+      addr < s.physical_end ? static_cast<std::size_t>(std::min<haddr_t>(size, s.physical_end - addr))
+                            : 0;
+  if (on_disk > 0 && !pread_all(s.fd, out, on_disk, addr)) {
+    return push_error("hawser read", H5E_READERROR, errno_text("pread", s.name));
+  }
+  std::memset(out + on_disk, 0, size - on_disk);
+  overlay_held(s, addr, size, out);
+  return 0;
+}
+
+herr_t cf_write(H5FD_t* file, H5FD_mem_t type, hid_t /*dxpl*/, haddr_t addr, size_t size,
+                const void* buf) {
+  CommitState& s = state_of(file);
+  const auto* in = static_cast<const unsigned char*>(buf);
+  try {
+    if (addr < s.committed_end) {
+      const auto n = static_cast<std::size_t>(std::min<haddr_t>(size, s.committed_end - addr));
+      hold(s, addr, in, n, type);
+      addr += n;
+      in += n;
+      size -= n;
+    }
+  } catch (const std::bad_alloc&) {
+    return push_error("hawser write", H5E_CANTALLOC, "out of memory holding an overwrite");
+  }
+  if (size > 0) {
+    if (!pwrite_all(s.fd, in, size, addr)) {
+      return push_error("hawser write", H5E_WRITEERROR, errno_text("pwrite", s.name));
+    }
+    s.physical_end = std::max(s.physical_end, addr + size);
+  }
+  return 0;
+}
+
+herr_t cf_flush(H5FD_t* file, hid_t /*dxpl*/, hbool_t /*closing*/) {
+  return commit(state_of(file));
+}
+
+// The file is sized by commit(), in its place in the order.
+herr_t cf_truncate(H5FD_t* /*file*/, hid_t /*dxpl*/, hbool_t /*closing*/) { return 0; }
+
+H5FD_class_t make_commit_class() {
+  H5FD_class_t c{};
+  c.name = "hawser_ordered_commit";
+  c.maxaddr = (static_cast<haddr_t>(1) << (8 * sizeof(off_t) - 1)) - 1;
+  c.fc_degree = H5F_CLOSE_WEAK;
+  c.fapl_size = sizeof(DriverConfig);
+  c.fapl_get = cf_fapl_get;
+  c.fapl_copy = cf_fapl_copy;
+  c.fapl_free = cf_fapl_free;
+  c.open = cf_open;
+  c.close = cf_close;
+  c.cmp = cf_cmp;
+  c.query = cf_query;
+  c.get_eoa = cf_get_eoa;
+  c.set_eoa = cf_set_eoa;
+  c.get_eof = cf_get_eof;
+  c.get_handle = cf_get_handle;
+  c.read = cf_read;
+  c.write = cf_write;
+  c.flush = cf_flush;
+  c.truncate = cf_truncate;
+  const H5FD_mem_t map[H5FD_MEM_NTYPES] = H5FD_FLMAP_DICHOTOMY;
+  std::copy(std::begin(map), std::end(map), std::begin(c.fl_map));
+  return c;  // lock/unlock stay null: no flock, so readers can open the file while we write
+}
+
+hid_t commit_driver() {
+  static const H5FD_class_t cls = make_commit_class();
+  static hid_t id = H5I_INVALID_HID;
+  if (id < 0 || H5Iis_valid(id) <= 0) id = h5check(H5FDregister(&cls), "H5FDregister");
+  return id;
+}
+
+// =============================================================================================
+// Paths, types and property lists
+// =============================================================================================
+
+std::vector<std::string> split_path(const std::string& path) {
+  std::vector<std::string> parts;
+  std::size_t start = 0;
+  while (start <= path.size()) {
+    const std::size_t slash = path.find('/', start);
+    const std::size_t stop = slash == std::string::npos ? path.size() : slash;
+    if (stop > start) parts.push_back(path.substr(start, stop - start));
+    start = stop + 1;
+  }
+  return parts;
+}
+
+std::string join_path(const std::vector<std::string>& parts, std::size_t count) {
+  std::string path;
+  for (std::size_t i = 0; i < count; ++i) path += "/" + parts[i];
+  return path.empty() ? "/" : path;
+}
+
+H5PropListId plist(hid_t cls) { return H5PropListId{h5check(H5Pcreate(cls), "H5Pcreate")}; }
+
+// Object creation properties without timestamps: the files are reproducible, and a growing
+// dataset's header changes only in its dimensions.
+H5PropListId untimed(hid_t cls) {
+  H5PropListId p = plist(cls);
+  h5check(H5Pset_obj_track_times(p.get(), 0), "H5Pset_obj_track_times");
+  return p;
+}
+
+// Create every missing group among the first `count` components of `parts`.
+void make_groups(hid_t file, const std::vector<std::string>& parts, std::size_t count) {
+  const H5PropListId gcpl = untimed(H5P_GROUP_CREATE);
+  for (std::size_t i = 1; i <= count; ++i) {
+    const std::string prefix = join_path(parts, i);
+    if (h5check(H5Lexists(file, prefix.c_str(), H5P_DEFAULT), "H5Lexists") > 0) continue;
+    H5GroupId group{h5check(H5Gcreate2(file, prefix.c_str(), H5P_DEFAULT, gcpl.get(), H5P_DEFAULT),
+                            "H5Gcreate2")};
+  }
+}
+
+// Fixed-length UTF-8 string type of `length` bytes (at least one, so "" is storable).
+H5DatatypeId string_type(std::size_t length) {
+  H5DatatypeId type{h5check(H5Tcopy(H5T_C_S1), "H5Tcopy")};
+  h5check(H5Tset_size(type.get(), std::max<std::size_t>(length, 1)), "H5Tset_size");
+  h5check(H5Tset_strpad(type.get(), H5T_STR_NULLPAD), "H5Tset_strpad");
+  h5check(H5Tset_cset(type.get(), H5T_CSET_UTF8), "H5Tset_cset");
+  return type;
+}
+
+void replace_attribute(hid_t object, const std::string& name, hid_t file_type, hid_t mem_type,
+                       const void* value) {
+  if (h5check(H5Aexists(object, name.c_str()), "H5Aexists") > 0) {
+    h5check(H5Adelete(object, name.c_str()), "H5Adelete");
+  }
+  const H5DataspaceId scalar{h5check(H5Screate(H5S_SCALAR), "H5Screate")};
+  const H5AttributeId attr{h5check(
+      H5Acreate2(object, name.c_str(), file_type, scalar.get(), H5P_DEFAULT, H5P_DEFAULT),
+      "H5Acreate2")};
+  h5check(H5Awrite(attr.get(), mem_type, value), "H5Awrite");
+}
+
+void replace_string_attribute(hid_t object, const std::string& name, const std::string& value) {
+  const H5DatatypeId type = string_type(value.size());
+  replace_attribute(object, name, type.get(), type.get(), value.c_str());
+}
+
+// Chunk shape of a series: rows wider than 1 MiB are split along their largest axes; then as
+// many rows as fill about 64 KiB, at most 512 (a chunk left partial by a flush is rewritten
+// elsewhere by the next one, so narrow series keep small chunks).
+std::vector<hsize_t> series_chunk(const std::vector<hsize_t>& row_dims) {
+  constexpr hsize_t kMaxRowBytes = 1024 * 1024;
+  constexpr hsize_t kTargetBytes = 64 * 1024;
+  constexpr hsize_t kMaxRows = 512;
+  std::vector<hsize_t> chunk(1 + row_dims.size(), 1);
+  std::copy(row_dims.begin(), row_dims.end(), chunk.begin() + 1);
+  const auto row_bytes = [&chunk] {
+    hsize_t bytes = sizeof(double);
+    for (std::size_t i = 1; i < chunk.size(); ++i) bytes *= chunk[i];
+    return bytes;
+  };
+  while (row_bytes() > kMaxRowBytes) {
+    const auto widest = std::max_element(chunk.begin() + 1, chunk.end());
+    *widest = (*widest + 1) / 2;
+  }
+  chunk[0] = std::clamp<hsize_t>(kTargetBytes / row_bytes(), 1, kMaxRows);
+  return chunk;
+}
+
+}  // namespace
+
+// =============================================================================================
+// H5Writer
+// =============================================================================================
+
+struct H5Writer::Series {
+  std::string path;
+  H5DatasetId dataset;
+  std::vector<hsize_t> row_dims;
+  std::size_t row_size = 1;     // doubles per row
+  hsize_t rows_in_file = 0;
+  std::vector<double> pending;  // rows appended since the last flush, row-major
+};
+
+H5Writer::H5Writer() = default;
+H5Writer::H5Writer(H5Writer&&) noexcept = default;
+
+H5Writer& H5Writer::operator=(H5Writer&& other) noexcept {
+  if (this != &other) {
+    try {
+      close();
+    } catch (...) {  // a failed close of the old file must not stop the move
+    }
+    series_ = std::move(other.series_);
+    file_ = std::move(other.file_);
+  }
+  return *this;
+}
+
+H5Writer::~H5Writer() {
+  try {
+    close();
+  } catch (...) {  // destructors must not throw; call close() to see the error
+  }
+}
+
+H5Writer H5Writer::create(const std::string& path, Durability durability) {
+  h5_silence_errors();
+  H5PropListId fcpl = untimed(H5P_FILE_CREATE);
+  // Never reuse freed space: committed bytes must stay as they are until nothing refers to them.
+  h5check(H5Pset_file_space_strategy(fcpl.get(), H5F_FSPACE_STRATEGY_NONE, 0, 1),
+          "H5Pset_file_space_strategy");
+  const H5PropListId fapl = plist(H5P_FILE_ACCESS);
+  const DriverConfig config{durability == Durability::power_loss};
+  h5check(H5Pset_driver(fapl.get(), commit_driver(), &config), "H5Pset_driver");
+
+  H5Writer writer;
+  writer.file_ = H5FileId{h5check(
+      H5Fcreate(path.c_str(), H5F_ACC_TRUNC, fcpl.get(), fapl.get()), "H5Fcreate")};
+  writer.flush();  // from here on the file is a valid HDF5 file for any reader
+
+  if (durability == Durability::power_loss) {
+    // The new directory entry must survive too.
+    const std::size_t slash = path.find_last_of('/');
+    const std::string dir = slash == std::string::npos ? "." : path.substr(0, slash + 1);
+    const int fd = ::open(dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+    const bool synced = fd >= 0 && ::fsync(fd) == 0;
+    if (fd >= 0) ::close(fd);
+    if (!synced) throw LibraryError(errno_text("fsync of directory", dir));
+  }
+  return writer;
+}
+
+void H5Writer::require_open(const char* what) const {
+  if (!file_) throw std::logic_error(std::string("H5Writer::") + what + " on a closed file");
+}
+
+void H5Writer::write_fixed(const std::string& path, const std::vector<hsize_t>& dims,
+                           const void* data, hid_t mem_type, hid_t file_type,
+                           const std::string& units) {
+  require_open("write_array");
+  const auto parts = split_path(path);
+  if (parts.empty()) throw std::invalid_argument("H5Writer::write_array: empty dataset path");
+  make_groups(file_.get(), parts, parts.size() - 1);
+  const H5DataspaceId space{h5check(
+      dims.empty() ? H5Screate(H5S_SCALAR)
+                   : H5Screate_simple(static_cast<int>(dims.size()), dims.data(), nullptr),
+      "H5Screate_simple")};
+  const H5PropListId dcpl = untimed(H5P_DATASET_CREATE);
+  const H5DatasetId dataset{h5check(H5Dcreate2(file_.get(), join_path(parts, parts.size()).c_str(),
+                                               file_type, space.get(), H5P_DEFAULT, dcpl.get(),
+                                               H5P_DEFAULT),
+                                    "H5Dcreate2")};
+  hsize_t count = 1;
+  for (const hsize_t d : dims) count *= d;
+  if (count > 0) {
+    h5check(H5Dwrite(dataset.get(), mem_type, H5S_ALL, H5S_ALL, H5P_DEFAULT, data), "H5Dwrite");
+  }
+  replace_string_attribute(dataset.get(), "units", units);
+}
+
+void H5Writer::write_array(const std::string& path, const std::vector<hsize_t>& dims,
+                           const double* data, const std::string& units) {
+  write_fixed(path, dims, data, H5T_NATIVE_DOUBLE, H5T_IEEE_F64LE, units);
+}
+
+void H5Writer::write_array(const std::string& path, const std::vector<hsize_t>& dims,
+                           const long long* data, const std::string& units) {
+  write_fixed(path, dims, data, H5T_NATIVE_LLONG, H5T_STD_I64LE, units);
+}
+
+void H5Writer::write_string(const std::string& path, const std::string& text) {
+  require_open("write_string");
+  const auto parts = split_path(path);
+  if (parts.empty()) throw std::invalid_argument("H5Writer::write_string: empty dataset path");
+  make_groups(file_.get(), parts, parts.size() - 1);
+  const H5DatatypeId type = string_type(text.size());
+  const H5DataspaceId scalar{h5check(H5Screate(H5S_SCALAR), "H5Screate")};
+  const H5PropListId dcpl = untimed(H5P_DATASET_CREATE);
+  const H5DatasetId dataset{h5check(H5Dcreate2(file_.get(), join_path(parts, parts.size()).c_str(),
+                                               type.get(), scalar.get(), H5P_DEFAULT, dcpl.get(),
+                                               H5P_DEFAULT),
+                                    "H5Dcreate2")};
+  h5check(H5Dwrite(dataset.get(), type.get(), H5S_ALL, H5S_ALL, H5P_DEFAULT, text.c_str()),
+          "H5Dwrite");
+}
+
+namespace {
+// Open the group or dataset at `object_path`, creating missing groups (the root is "/").
+H5ObjectId open_object(hid_t file, const std::string& object_path) {
+  const auto parts = split_path(object_path);
+  make_groups(file, parts, parts.size());
+  return H5ObjectId{h5check(H5Oopen(file, join_path(parts, parts.size()).c_str(), H5P_DEFAULT),
+                            "H5Oopen")};
+}
+}  // namespace
+
+void H5Writer::set_attribute(const std::string& object_path, const std::string& name,
+                             double value) {
+  require_open("set_attribute");
+  const H5ObjectId object = open_object(file_.get(), object_path);
+  replace_attribute(object.get(), name, H5T_IEEE_F64LE, H5T_NATIVE_DOUBLE, &value);
+}
+
+void H5Writer::set_integer_attribute(const std::string& object_path, const std::string& name,
+                                     long long value) {
+  require_open("set_attribute");
+  const H5ObjectId object = open_object(file_.get(), object_path);
+  replace_attribute(object.get(), name, H5T_STD_I64LE, H5T_NATIVE_LLONG, &value);
+}
+
+void H5Writer::set_attribute(const std::string& object_path, const std::string& name,
+                             const std::string& value) {
+  require_open("set_attribute");
+  const H5ObjectId object = open_object(file_.get(), object_path);
+  replace_string_attribute(object.get(), name, value);
+}
+
+H5Writer::SeriesId H5Writer::create_series(const std::string& path,
+                                           const std::vector<hsize_t>& row_dims,
+                                           const std::string& units) {
+  require_open("create_series");
+  const auto parts = split_path(path);
+  if (parts.empty()) throw std::invalid_argument("H5Writer::create_series: empty path");
+  Series series;
+  series.path = join_path(parts, parts.size());
+  series.row_dims = row_dims;
+  for (const hsize_t d : row_dims) {
+    if (d == 0) throw std::invalid_argument("H5Writer::create_series: zero row extent in " + path);
+    series.row_size *= static_cast<std::size_t>(d);
+  }
+  make_groups(file_.get(), parts, parts.size() - 1);
+
+  std::vector<hsize_t> dims{0}, max_dims{H5S_UNLIMITED};
+  dims.insert(dims.end(), row_dims.begin(), row_dims.end());
+  max_dims.insert(max_dims.end(), row_dims.begin(), row_dims.end());
+  const H5DataspaceId space{h5check(
+      H5Screate_simple(static_cast<int>(dims.size()), dims.data(), max_dims.data()),
+      "H5Screate_simple")};
+
+  const std::vector<hsize_t> chunk = series_chunk(row_dims);
+  const H5PropListId dcpl = untimed(H5P_DATASET_CREATE);
+  h5check(H5Pset_chunk(dcpl.get(), static_cast<int>(chunk.size()), chunk.data()), "H5Pset_chunk");
+  h5check(H5Pset_shuffle(dcpl.get()), "H5Pset_shuffle");
+  h5check(H5Pset_deflate(dcpl.get(), 4), "H5Pset_deflate");  // level 4: h5py's gzip default
+  const double fill = std::numeric_limits<double>::quiet_NaN();  // unwritten rows read as NaN
+  h5check(H5Pset_fill_value(dcpl.get(), H5T_NATIVE_DOUBLE, &fill), "H5Pset_fill_value");
+
+  // Room for several chunks per series, fully written ones evicted first (w0 = 1).
+  hsize_t chunk_bytes = sizeof(double);
+  for (const hsize_t c : chunk) chunk_bytes *= c;
+  const H5PropListId dapl = plist(H5P_DATASET_ACCESS);
+  h5check(H5Pset_chunk_cache(dapl.get(), 521, std::max<hsize_t>(1024 * 1024, 4 * chunk_bytes), 1.0),
+          "H5Pset_chunk_cache");
+
+  series.dataset = H5DatasetId{h5check(H5Dcreate2(file_.get(), series.path.c_str(),
+                                                  H5T_IEEE_F64LE, space.get(), H5P_DEFAULT,
+                                                  dcpl.get(), dapl.get()),
+                                       "H5Dcreate2")};
+  replace_string_attribute(series.dataset.get(), "units", units);
+  series_.push_back(std::move(series));
+  return SeriesId{series_.size() - 1};
+}
+
+void H5Writer::append(SeriesId id, const double* rows, std::size_t nrows) {
+  require_open("append");
+  Series& s = series_.at(id.index);
+  s.pending.insert(s.pending.end(), rows, rows + nrows * s.row_size);
+}
+
+std::size_t H5Writer::length(SeriesId id) const {
+  const Series& s = series_.at(id.index);
+  return static_cast<std::size_t>(s.rows_in_file) + s.pending.size() / s.row_size;
+}
+
+void H5Writer::flush() {
+  require_open("flush");
+  for (Series& s : series_) {
+    if (s.pending.empty()) continue;
+    const hsize_t nrows = s.pending.size() / s.row_size;
+    std::vector<hsize_t> dims{s.rows_in_file + nrows}, start{s.rows_in_file}, count{nrows};
+    dims.insert(dims.end(), s.row_dims.begin(), s.row_dims.end());
+    start.resize(dims.size(), 0);
+    count.insert(count.end(), s.row_dims.begin(), s.row_dims.end());
+    h5check(H5Dset_extent(s.dataset.get(), dims.data()), "H5Dset_extent");
+    const H5DataspaceId file_space{h5check(H5Dget_space(s.dataset.get()), "H5Dget_space")};
+    h5check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, start.data(), nullptr,
+                                count.data(), nullptr),
+            "H5Sselect_hyperslab");
+    const H5DataspaceId mem_space{h5check(
+        H5Screate_simple(static_cast<int>(count.size()), count.data(), nullptr),
+        "H5Screate_simple")};
+    h5check(H5Dwrite(s.dataset.get(), H5T_NATIVE_DOUBLE, mem_space.get(), file_space.get(),
+                     H5P_DEFAULT, s.pending.data()),
+            "H5Dwrite");
+    s.rows_in_file += nrows;
+    s.pending.clear();
+  }
+  // Writes the library's dirty state; the driver's flush callback then commits it in order.
+  h5check(H5Fflush(file_.get(), H5F_SCOPE_GLOBAL), "H5Fflush");
+}
+
+void H5Writer::close() {
+  if (!file_) return;
+  flush();
+  for (Series& s : series_) s.dataset.close("H5Dclose");
+  file_.close("H5Fclose");
+}
+
+}  // namespace hawser

@@ -1,0 +1,154 @@
+#include "solver/simulation.hpp"
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <limits>
+
+#include "solver/errors.hpp"
+#include "solver/progress.hpp"
+
+namespace hawser {
+
+RunOptions run_options(const SimulationSpec& sim, const StateLayout& layout) {
+  RunOptions o;
+  o.duration_s = sim.duration_s;
+  o.output_interval_s = sim.output_interval_s;
+  o.integrator.method = parse_method(sim.method);
+  o.integrator.rtol = sim.rtol;
+  o.integrator.max_step_s = sim.max_step_s;
+  o.integrator.atol.assign(layout.size(), 0.0);
+  for (std::size_t k = layout.first_free(); k <= layout.last_free(); ++k)
+    for (int a = 0; a < 3; ++a) {
+      o.integrator.atol[layout.u(k, a)] = sim.atol_position_m;
+      o.integrator.atol[layout.v(k, a)] = sim.atol_velocity_m_s;
+    }
+  // Quadratures: loose, they only accumulate (J, N m s).
+  o.integrator.atol[layout.dissipated_energy()] = 1.0;
+  o.integrator.atol[layout.anchor_angular_impulse()] = 1.0;
+  o.stop_on_rupture = sim.stop_on_rupture;
+  return o;
+}
+
+namespace {
+
+class SummaryKeeper {
+ public:
+  SummaryKeeper(const TetherModel& m, RunSummary& s) : model_(m), s_(s) {}
+  void observe(double t, const Matrix3X& x, const TetherDiagnostics& d) {
+    for (std::size_t e = 0; e < d.tension_n.size(); ++e) {
+      if (d.tension_n[e] > s_.peak_tension_n) {
+        s_.peak_tension_n = d.tension_n[e];
+        s_.peak_tension_element = e;
+        s_.peak_tension_time_s = t;
+      }
+    }
+    if (d.max_stress_ratio > 0.0 && 1.0 / d.max_stress_ratio < s_.min_safety_factor) {
+      s_.min_safety_factor = 1.0 / d.max_stress_ratio;
+      s_.min_safety_factor_element = d.max_stress_element;
+      s_.min_safety_factor_time_s = t;
+    }
+    for (std::size_t k = 0; k < model_.nodes(); ++k) {
+      const Eigen::Vector3d u = x.col(k) - model_.mesh.position.col(k);
+      if (std::abs(u.y()) > s_.peak_east_west_m) {
+        s_.peak_east_west_m = std::abs(u.y());
+        s_.peak_east_west_node = k;
+        s_.peak_east_west_time_s = t;
+      }
+      if (std::abs(u.z()) > s_.peak_north_south_m) {
+        s_.peak_north_south_m = std::abs(u.z());
+        s_.peak_north_south_node = k;
+        s_.peak_north_south_time_s = t;
+      }
+    }
+    if (d.slack_elements > 0 && s_.first_slack_time_s < 0.0) s_.first_slack_time_s = t;
+    s_.max_slack_elements = std::max(s_.max_slack_elements, d.slack_elements);
+  }
+
+ private:
+  const TetherModel& model_;
+  RunSummary& s_;
+};
+
+}  // namespace
+
+RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, const RunOptions& opt, OutputSink& sink) {
+  const auto wall0 = std::chrono::steady_clock::now();
+  RunSummary summary;
+  SummaryKeeper keeper(sys.model(), summary);
+  Progress progress(opt.duration_s, opt.progress);
+  std::vector<double> y = y0;
+  Matrix3X x, v;
+  auto emit = [&](double t) {
+    const TetherDiagnostics d = sys.diagnose(t, y.data());
+    sys.node_state(t, y.data(), x, v);
+    sink.record(t, x, v, d);
+    keeper.observe(t, x, d);
+    ++summary.outputs;
+    return d;
+  };
+  emit(0.0);
+
+  std::vector<double> events = opt.event_times_s;
+  std::sort(events.begin(), events.end());
+  std::size_t next_event = 0;
+  while (next_event < events.size() && events[next_event] <= 0.0) ++next_event;
+
+  TimeIntegrator integ(sys, 0.0, y.data(), opt.integrator);
+  const double inf = std::numeric_limits<double>::infinity();
+  long output_index = 1;
+  auto last_flush = std::chrono::steady_clock::now();
+  int since_flush = 0;
+  double t = 0.0;
+  summary.status = "complete";
+  try {
+    while (t < opt.duration_s) {
+      const double t_out = std::min(opt.duration_s, output_index * opt.output_interval_s);
+      const double t_stop = next_event < events.size() ? std::min(events[next_event], opt.duration_s) : inf;
+      const double reached = integ.advance(t_out, t_stop, y.data());
+      t = reached;
+      const bool rupture = !integ.root_info().empty() && integ.root_info()[0] > 0 && reached < t_out;
+      if (rupture) {
+        const TetherDiagnostics d = sys.diagnose(t, y.data());
+        summary.ruptures.push_back(
+            {t, d.max_stress_element, d.max_stress_ratio * sys.model().ultimate_strength_pa});
+        if (opt.stop_on_rupture) {
+          emit(t);
+          summary.status = "stopped";
+          summary.message = "element " + std::to_string(d.max_stress_element) + " reached its ultimate strength at t = " +
+                            std::to_string(t) + " s";
+          break;
+        }
+        continue;
+      }
+      if (reached >= t_out) {
+        emit(t_out);
+        ++output_index;
+        const auto now = std::chrono::steady_clock::now();
+        if (++since_flush >= opt.flush_every ||
+            std::chrono::duration<double>(now - last_flush).count() >= opt.flush_wall_s) {
+          sink.flush();
+          since_flush = 0;
+          last_flush = now;
+        }
+      } else if (next_event < events.size() && reached >= events[next_event]) {
+        // A discontinuity of the forcing: restart from low order on the far side.
+        integ.restart(reached, y.data());
+        while (next_event < events.size() && events[next_event] <= reached) ++next_event;
+      }
+      progress.update(t, integ.stats().steps);
+    }
+  } catch (const IntegratorFailure& e) {
+    summary.status = "failed";
+    summary.message = e.what();
+    t = e.time_s();
+  }
+  progress.finish();
+  summary.end_time_s = t;
+  summary.stats = integ.stats();
+  summary.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - wall0).count();
+  sink.flush();
+  return summary;
+}
+
+}  // namespace hawser

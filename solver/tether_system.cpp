@@ -1,0 +1,128 @@
+#include "solver/tether_system.hpp"
+
+#include <algorithm>
+
+namespace hawser {
+
+TetherSystem::TetherSystem(const TetherModel& model)
+    : model_(model),
+      layout_(1, model.far_end ? model.nodes() - 2 : model.nodes() - 1),
+      x_(3, model.nodes()),
+      v_(3, model.nodes()),
+      f_(3, model.nodes()),
+      jac_(model.nodes()) {}
+
+void TetherSystem::node_state(double t, const double* y, Matrix3X& x, Matrix3X& v) const {
+  const std::size_t n = model_.nodes();
+  x = model_.mesh.position;
+  v.setZero(3, n);
+  x.col(0) += model_.anchor->displacement(t);
+  v.col(0) = model_.anchor->velocity(t);
+  if (model_.far_end) {
+    x.col(n - 1) += model_.far_end->displacement(t);
+    v.col(n - 1) = model_.far_end->velocity(t);
+  }
+  for (std::size_t k = layout_.first_free(); k <= layout_.last_free(); ++k)
+    for (int a = 0; a < 3; ++a) {
+      x(a, k) += y[layout_.u(k, a)];
+      v(a, k) = y[layout_.v(k, a)];
+    }
+}
+
+void TetherSystem::rhs(double t, const double* y, double* ydot) {
+  node_state(t, y, x_, v_);
+  const TetherState s{t, x_, v_, model_.mesh.node_mass};
+  f_.setZero();
+  for (const ForceModel* m : model_.forces()) m->add_forces(s, f_);
+  for (std::size_t k = layout_.first_free(); k <= layout_.last_free(); ++k) {
+    const double inv_m = 1.0 / model_.mesh.node_mass[k];
+    for (int a = 0; a < 3; ++a) {
+      ydot[layout_.u(k, a)] = v_(a, k);
+      ydot[layout_.v(k, a)] = f_(a, k) * inv_m;
+    }
+  }
+  double dissipation = 0.0;
+  for (const ForceModel* m : model_.forces()) dissipation += m->dissipated_power(s);
+  ydot[layout_.dissipated_energy()] = dissipation;
+  // Torque about z of the anchor's pull on node 1, -T0 n0 applied at x_1 (equal to its
+  // moment at x_0, the force being along the element).
+  const Eigen::Vector3d d0 = x_.col(1) - x_.col(0);
+  const double l0 = d0.norm();
+  double tension0 = 0.0;
+  if (l0 > model_.bars->l0(0)) {
+    const double ldot = d0.dot(v_.col(1) - v_.col(0)) / l0;
+    // Same constitutive law as the bars (kept here to avoid a pass over all elements).
+    tension0 = std::max(0.0, model_.bars->ea(0) / model_.bars->l0(0) * (l0 - model_.bars->l0(0)) +
+                                 model_.bars->damping(0) * ldot);
+  }
+  const Eigen::Vector3d pull_on_tether = -tension0 * d0 / l0;
+  ydot[layout_.anchor_angular_impulse()] = x_(0, 0) * pull_on_tether.y() - x_(1, 0) * pull_on_tether.x();
+}
+
+void TetherSystem::jacobian(double t, const double* y, const double*, const BandJacobian& j) {
+  node_state(t, y, x_, v_);
+  const TetherState s{t, x_, v_, model_.mesh.node_mass};
+  jac_.set_zero();
+  for (const ForceModel* m : model_.forces()) m->add_jacobian(s, jac_);
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  for (std::size_t k = first; k <= last; ++k) {
+    const double inv_m = 1.0 / model_.mesh.node_mass[k];
+    for (int a = 0; a < 3; ++a) j(layout_.u(k, a), layout_.v(k, a)) = 1.0;
+    const std::size_t lo = std::max(first, k - 1), hi = std::min(last, k + 1);
+    for (std::size_t q = lo; q <= hi; ++q) {
+      const Eigen::Matrix3d& dx = jac_.dx(k, q);
+      const Eigen::Matrix3d& dv = jac_.dv(k, q);
+      for (int a = 0; a < 3; ++a)
+        for (int b = 0; b < 3; ++b) {
+          j(layout_.v(k, a), layout_.u(q, b)) = dx(a, b) * inv_m;
+          j(layout_.v(k, a), layout_.v(q, b)) = dv(a, b) * inv_m;
+        }
+    }
+  }
+  // The quadrature rows stay zero: nothing depends on the quadratures, and their own
+  // Newton update is exact given the others.
+}
+
+void TetherSystem::roots(double t, const double* y, double* g) {
+  node_state(t, y, x_, v_);
+  const TetherState s{t, x_, v_, model_.mesh.node_mass};
+  std::vector<double> tension;
+  model_.bars->tensions(s, tension);
+  double worst = 0.0;
+  for (std::size_t e = 0; e < tension.size(); ++e)
+    worst = std::max(worst, tension[e] / model_.mesh.element_area[e]);
+  g[0] = worst / model_.ultimate_strength_pa - 1.0;
+}
+
+TetherDiagnostics TetherSystem::diagnose(double t, const double* y) const {
+  Matrix3X x, v;
+  node_state(t, y, x, v);
+  const TetherState s{t, x, v, model_.mesh.node_mass};
+  TetherDiagnostics d;
+  model_.bars->tensions(s, d.tension_n);
+  d.strain_j = model_.bars->energy(s);
+  for (const auto& b : model_.body) d.potential_j += b->energy(s);
+  const double w = model_.spin_rate_rad_s;
+  for (std::size_t k = 0; k < model_.nodes(); ++k) {
+    const double m = model_.mesh.node_mass[k];
+    d.kinetic_j += 0.5 * m * v.col(k).squaredNorm();
+    if (layout_.is_free(k))
+      d.angular_momentum_z +=
+          m * (x(0, k) * v(1, k) - x(1, k) * v(0, k) + w * (x(0, k) * x(0, k) + x(1, k) * x(1, k)));
+  }
+  d.dissipated_j = y[layout_.dissipated_energy()];
+  d.anchor_angular_impulse = y[layout_.anchor_angular_impulse()];
+  const Eigen::Vector3d d0 = x.col(1) - x.col(0);
+  d.anchor_force_n = d.tension_n[0] * d0 / d0.norm();
+  for (std::size_t e = 0; e < d.tension_n.size(); ++e) {
+    const double ratio = d.tension_n[e] / model_.mesh.element_area[e] / model_.ultimate_strength_pa;
+    if (ratio > d.max_stress_ratio) {
+      d.max_stress_ratio = ratio;
+      d.max_stress_element = e;
+    }
+    if (d.tension_n[e] == 0.0) ++d.slack_elements;
+  }
+  return d;
+}
+
+}  // namespace hawser

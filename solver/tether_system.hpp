@@ -1,0 +1,51 @@
+#pragma once
+// The tether as an ODE system for the integrator: assembles the right-hand side and its
+// banded Jacobian from the force models (the one place this happens), following the state
+// layout of solver/state_layout.hpp. Equations of motion of free node k (lumped mass m_k):
+//   u_k' = v_k,   m_k v_k' = sum of the model forces on node k.
+#include <vector>
+
+#include "solver/ode_system.hpp"
+#include "solver/state_layout.hpp"
+#include "solver/tether_model.hpp"
+
+namespace hawser {
+
+/// Quantities derived from one state, for output and checks.
+struct TetherDiagnostics {
+  std::vector<double> tension_n;        // (N) [N]
+  double kinetic_j = 0, potential_j = 0, strain_j = 0, dissipated_j = 0;  // [J]
+  Eigen::Vector3d anchor_force_n = Eigen::Vector3d::Zero();  // pull of the tether on the anchor [N]
+  double angular_momentum_z = 0;        // of the free nodes about the spin axis, inertial [kg m^2/s]
+  double anchor_angular_impulse = 0;    // integral of the anchor's torque on the tether [N m s]
+  double max_stress_ratio = 0;          // max over elements of stress / ultimate strength
+  std::size_t max_stress_element = 0;
+  std::size_t slack_elements = 0;
+};
+
+class TetherSystem : public OdeSystem {
+ public:
+  explicit TetherSystem(const TetherModel& model);
+
+  std::size_t size() const override { return layout_.size(); }
+  long half_bandwidth() const override { return StateLayout::kHalfBandwidth; }
+  void rhs(double t, const double* y, double* ydot) override;
+  void jacobian(double t, const double* y, const double* fy, const BandJacobian& j) override;
+  /// One root: the largest stress ratio minus 1 (an element reaching its ultimate strength).
+  int num_roots() const override { return 1; }
+  void roots(double t, const double* y, double* g) override;
+
+  const StateLayout& layout() const { return layout_; }
+  const TetherModel& model() const { return model_; }
+  /// Positions and velocities of all nodes at (t, y) [m, m/s].
+  void node_state(double t, const double* y, Matrix3X& x, Matrix3X& v) const;
+  TetherDiagnostics diagnose(double t, const double* y) const;
+
+ private:
+  const TetherModel& model_;
+  StateLayout layout_;
+  Matrix3X x_, v_, f_;    // work arrays (all nodes)
+  NodeJacobian jac_;
+};
+
+}  // namespace hawser

@@ -1,0 +1,510 @@
+// The SUNDIALS glue: CVODE (BDF + Newton + band LU, or Adams + fixed point) and ARKODE
+// (ARKStep explicit) driving an OdeSystem. See time_integrator.hpp for the contract.
+//
+// C callbacks never let a C++ exception cross into SUNDIALS: each callback catches it,
+// stores it in the CallbackBridge and returns -1 (unrecoverable), and advance() rethrows it
+// once the solver has returned. SUNDIALS' own messages go to an error handler that keeps
+// the text for the exception instead of printing it.
+#include "solver/time_integrator.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <exception>
+#include <sstream>
+#include <stdexcept>
+
+#include <sunlinsol/sunlinsol_band.h>
+#include <sunmatrix/sunmatrix_band.h>
+#include <sunnonlinsol/sunnonlinsol_fixedpoint.h>
+
+#include "solver/errors.hpp"
+#include "solver/sundials_handles.hpp"
+
+namespace hawser {
+
+Method parse_method(const std::string& name) {
+  if (name == "bdf") return Method::bdf;
+  if (name == "adams") return Method::adams;
+  if (name == "erk") return Method::erk;
+  throw InputError("unknown integration method '" + name + "' (valid: bdf, adams, erk)");
+}
+
+std::string method_name(Method method) {
+  switch (method) {
+    case Method::bdf: return "bdf";
+    case Method::adams: return "adams";
+    case Method::erk: return "erk";
+  }
+  return "unknown";
+}
+
+std::string SolverStats::to_string() const {
+  std::ostringstream out;
+  out << "steps " << steps << ", rhs evals " << rhs_evals << ", jac evals " << jac_evals
+      << ", linear setups " << linear_setups << ", error-test failures " << error_test_failures
+      << ", nonlinear iterations " << nonlinear_iterations << ", nonlinear failures "
+      << nonlinear_failures << ", root evals " << root_evals << ", last step " << last_step_s
+      << " s, last order " << last_order << ", t " << current_time_s << " s";
+  return out.str();
+}
+
+namespace {
+namespace sd = sundials;
+
+std::string format_time(double t_s) {
+  std::ostringstream out;
+  out.precision(12);
+  out << t_s;
+  return out.str();
+}
+
+// ---- the C side: callbacks ------------------------------------------------------------
+
+/// What the C callbacks reach through user_data.
+struct CallbackBridge {
+  OdeSystem& system;
+  std::exception_ptr error;  // first exception a callback caught since the last clear()
+  std::string message;       // last error text SUNDIALS reported
+  std::string non_finite;    // where the derivative first turned NaN or infinite
+  std::string stall;         // the "t + h = t" warning, once seen
+  bool stalled = false;      // SUNDIALS warned that t + h == t: the run is stuck
+
+  template <class Body>
+  int guard(Body&& body) noexcept {
+    try {
+      body();
+      return 0;
+    } catch (...) {
+      if (!error) error = std::current_exception();
+      return -1;  // negative: unrecoverable, the solver returns at once
+    }
+  }
+  void clear() {
+    error = nullptr;
+    message.clear();
+    non_finite.clear();
+    stall.clear();
+    stalled = false;
+  }
+};
+
+CallbackBridge& bridge_of(void* user_data) { return *static_cast<CallbackBridge*>(user_data); }
+double* data(N_Vector v) { return N_VGetArrayPointer(v); }
+
+/// A non-finite derivative is reported as a recoverable failure (positive return): CVODE
+/// retries with a smaller step, which cures a NaN caused by too large a step, and gives up
+/// after repeated failures instead of stepping on with NaN; ARKStep's explicit stages
+/// treat it as unrecoverable. Checking costs about 2 us per 6000 components.
+int rhs_callback(realtype t, N_Vector y, N_Vector ydot, void* user_data) {
+  CallbackBridge& b = bridge_of(user_data);
+  if (b.stalled) return -1;  // turns the stall into a failure (see error_callback)
+  const int status = b.guard([&] { b.system.rhs(t, data(y), data(ydot)); });
+  if (status != 0) return status;
+  const double* f = data(ydot);
+  const long n = N_VGetLength(ydot);
+  for (long i = 0; i < n; ++i) {
+    if (!std::isfinite(f[i])) {
+      if (b.non_finite.empty())
+        b.non_finite = "the right-hand side is not finite in component " +
+                       std::to_string(i) + " at t = " + format_time(t) + " s";
+      return 1;
+    }
+  }
+  return 0;
+}
+
+int root_callback(realtype t, N_Vector y, realtype* g, void* user_data) {
+  CallbackBridge& b = bridge_of(user_data);
+  return b.guard([&] { b.system.roots(t, data(y), g); });
+}
+
+/// Hands the system a view on the SUNBandMatrix storage itself (no copy), zeroed first.
+int jacobian_callback(realtype t, N_Vector y, N_Vector fy, SUNMatrix J, void* user_data,
+                      N_Vector, N_Vector, N_Vector) {
+  CallbackBridge& b = bridge_of(user_data);
+  return b.guard([&] {
+    sd::check_status(SUNMatZero(J), "SUNMatZero");
+    const BandJacobian view{SUNBandMatrix_Data(J),
+                            SUNBandMatrix_LDim(J),
+                            SUNBandMatrix_StoredUpperBandwidth(J),
+                            SUNBandMatrix_UpperBandwidth(J),
+                            SUNBandMatrix_LowerBandwidth(J),
+                            SUNBandMatrix_Columns(J)};
+    b.system.jacobian(t, data(y), data(fy), view);
+  });
+}
+
+/// Keeps SUNDIALS' error text for the exception. Of the warnings (code 99) only one
+/// matters: "t + h = t", a step below round-off. CVODE and ARKODE then "continue anyway"
+/// and can burn the whole step budget without moving (seen when f turns NaN beyond a
+/// fixed time), so the next rhs call fails the run instead. The test is on the message
+/// text of SUNDIALS 6.4; should the wording change, the stall is only reported later.
+void error_callback(int code, const char* /*module*/, const char* function, char* msg,
+                    void* user_data) {
+  static_assert(CV_WARNING == ARK_WARNING, "one warning code for both integrators");
+  CallbackBridge& b = bridge_of(user_data);
+  const std::string text = std::string(function ? function : "SUNDIALS") + ": " + msg;
+  if (code != CV_WARNING) {
+    b.message = text;
+  } else if (text.find("t + h = t") != std::string::npos && !b.stalled) {
+    b.stalled = true;
+    b.stall = "step size below round-off (" + text + ")";
+  }
+}
+
+/// Return flags that mean the caller misused the solver rather than the solver giving up.
+/// CVODE and ARKODE share these values.
+bool is_usage_error(int flag) {
+  static_assert(CV_MEM_FAIL == ARK_MEM_FAIL && CV_TOO_CLOSE == ARK_TOO_CLOSE &&
+                    CV_ILL_INPUT == ARK_ILL_INPUT && CV_BAD_T == ARK_BAD_T,
+                "CVODE and ARKODE flag values agree");
+  return flag <= CV_MEM_FAIL && flag >= CV_TOO_CLOSE;  // -20 .. -27
+}
+
+// ---- one SUNDIALS integrator behind a common face -------------------------------------
+
+class Stepper {
+ public:
+  virtual ~Stepper() = default;
+  virtual void set_stop_time(double t_s) = 0;
+  /// Raw return flag of CVode / ARKStepEvolve in normal mode.
+  virtual int evolve(double tout_s, N_Vector yout, double* t_reached_s) = 0;
+  virtual void root_info(int* found) = 0;
+  virtual void reinit(double t_s, N_Vector y) = 0;
+  virtual double internal_time() = 0;
+  virtual SolverStats segment_stats() = 0;
+  virtual std::string flag_name(int flag) = 0;
+  virtual const char* evolve_call() const = 0;
+};
+
+void set_tolerances_checked(const IntegratorOptions& o, N_Vector atol, void* mem,
+                            int (*scalar)(void*, realtype, realtype),
+                            int (*vector)(void*, realtype, N_Vector),
+                            void (*check)(int, const char*), const char* scalar_name,
+                            const char* vector_name) {
+  if (atol)
+    check(vector(mem, o.rtol, atol), vector_name);
+  else
+    check(scalar(mem, o.rtol, o.atol.front()), scalar_name);
+}
+
+class CvodeStepper final : public Stepper {
+ public:
+  CvodeStepper(const IntegratorOptions& o, double t0, N_Vector y0, N_Vector atol,
+               CallbackBridge& bridge, SUNContext ctx)
+      : bdf_(o.method == Method::bdf), roots_(bridge.system.num_roots()) {
+    mem_.reset(sd::check_created(CVodeCreate(bdf_ ? CV_BDF : CV_ADAMS, ctx), "CVodeCreate"));
+    void* m = mem_.get();
+    sd::check_cvode(CVodeSetErrHandlerFn(m, error_callback, &bridge), "CVodeSetErrHandlerFn");
+    sd::check_cvode(CVodeInit(m, rhs_callback, t0, y0), "CVodeInit");
+    sd::check_cvode(CVodeSetUserData(m, &bridge), "CVodeSetUserData");
+    set_tolerances_checked(o, atol, m, CVodeSStolerances, CVodeSVtolerances, sd::check_cvode,
+                           "CVodeSStolerances", "CVodeSVtolerances");
+    sd::check_cvode(CVodeSetMaxNumSteps(m, o.max_steps_between_outputs), "CVodeSetMaxNumSteps");
+    if (o.max_step_s > 0) sd::check_cvode(CVodeSetMaxStep(m, o.max_step_s), "CVodeSetMaxStep");
+    if (o.initial_step_s > 0)
+      sd::check_cvode(CVodeSetInitStep(m, o.initial_step_s), "CVodeSetInitStep");
+    if (o.max_order > 0) sd::check_cvode(CVodeSetMaxOrd(m, o.max_order), "CVodeSetMaxOrd");
+
+    if (bdf_) {
+      // SUNBandMatrix (6.x) sets the storage upper bandwidth to mu + ml itself, the room
+      // the band LU factorisation needs for fill-in.
+      const long n = N_VGetLength(y0);
+      const long b = std::min<long>(bridge.system.half_bandwidth(), n - 1);
+      matrix_.reset(sd::check_created(SUNBandMatrix(n, b, b, ctx), "SUNBandMatrix"));
+      linear_.reset(sd::check_created(SUNLinSol_Band(y0, matrix_.get(), ctx), "SUNLinSol_Band"));
+      sd::check_cvls(CVodeSetLinearSolver(m, linear_.get(), matrix_.get()),
+                     "CVodeSetLinearSolver");
+      sd::check_cvls(CVodeSetJacFn(m, jacobian_callback), "CVodeSetJacFn");
+    } else {
+      nonlinear_.reset(sd::check_created(SUNNonlinSol_FixedPoint(y0, 0, ctx),
+                                         "SUNNonlinSol_FixedPoint"));
+      sd::check_cvode(CVodeSetNonlinearSolver(m, nonlinear_.get()), "CVodeSetNonlinearSolver");
+    }
+    if (roots_ > 0) sd::check_cvode(CVodeRootInit(m, roots_, root_callback), "CVodeRootInit");
+  }
+
+  void set_stop_time(double t_s) override {
+    sd::check_cvode(CVodeSetStopTime(mem_.get(), t_s), "CVodeSetStopTime");
+  }
+  int evolve(double tout_s, N_Vector yout, double* t_reached_s) override {
+    return CVode(mem_.get(), tout_s, yout, t_reached_s, CV_NORMAL);
+  }
+  void root_info(int* found) override {
+    sd::check_cvode(CVodeGetRootInfo(mem_.get(), found), "CVodeGetRootInfo");
+  }
+  void reinit(double t_s, N_Vector y) override {
+    sd::check_cvode(CVodeReInit(mem_.get(), t_s, y), "CVodeReInit");
+  }
+  double internal_time() override {
+    realtype t = 0;
+    sd::check_cvode(CVodeGetCurrentTime(mem_.get(), &t), "CVodeGetCurrentTime");
+    return t;
+  }
+  SolverStats segment_stats() override {
+    void* m = mem_.get();
+    SolverStats s;
+    int q_current = 0;
+    realtype h_initial = 0, h_current = 0;
+    sd::check_cvode(CVodeGetIntegratorStats(m, &s.steps, &s.rhs_evals, &s.linear_setups,
+                                            &s.error_test_failures, &s.last_order, &q_current,
+                                            &h_initial, &s.last_step_s, &h_current,
+                                            &s.current_time_s),
+                    "CVodeGetIntegratorStats");
+    sd::check_cvode(CVodeGetNonlinSolvStats(m, &s.nonlinear_iterations, &s.nonlinear_failures),
+                    "CVodeGetNonlinSolvStats");
+    if (bdf_) sd::check_cvls(CVodeGetNumJacEvals(m, &s.jac_evals), "CVodeGetNumJacEvals");
+    if (roots_ > 0) sd::check_cvode(CVodeGetNumGEvals(m, &s.root_evals), "CVodeGetNumGEvals");
+    return s;
+  }
+  std::string flag_name(int flag) override {
+    return sd::flag_name(CVodeGetReturnFlagName, flag);
+  }
+  const char* evolve_call() const override { return "CVode"; }
+
+ private:
+  bool bdf_;
+  int roots_;
+  // Declared before mem_ so that the CVODE memory is freed first.
+  sd::Matrix matrix_;
+  sd::LinearSolver linear_;
+  sd::NonlinearSolver nonlinear_;
+  sd::CvodeMemory mem_;
+};
+
+class ArkodeStepper final : public Stepper {
+ public:
+  ArkodeStepper(const IntegratorOptions& o, double t0, N_Vector y0, N_Vector atol,
+                CallbackBridge& bridge, SUNContext ctx)
+      : roots_(bridge.system.num_roots()) {
+    // fi == NULL: purely explicit ARK, i.e. an explicit Runge-Kutta method.
+    mem_.reset(sd::check_created(ARKStepCreate(rhs_callback, nullptr, t0, y0, ctx),
+                                 "ARKStepCreate"));
+    void* m = mem_.get();
+    sd::check_arkode(ARKStepSetErrHandlerFn(m, error_callback, &bridge),
+                     "ARKStepSetErrHandlerFn");
+    sd::check_arkode(ARKStepSetUserData(m, &bridge), "ARKStepSetUserData");
+    set_tolerances_checked(o, atol, m, ARKStepSStolerances, ARKStepSVtolerances,
+                           sd::check_arkode, "ARKStepSStolerances", "ARKStepSVtolerances");
+    sd::check_arkode(ARKStepSetMaxNumSteps(m, o.max_steps_between_outputs),
+                     "ARKStepSetMaxNumSteps");
+    if (o.max_step_s > 0) sd::check_arkode(ARKStepSetMaxStep(m, o.max_step_s), "ARKStepSetMaxStep");
+    if (o.initial_step_s > 0)
+      sd::check_arkode(ARKStepSetInitStep(m, o.initial_step_s), "ARKStepSetInitStep");
+    if (o.max_order > 0) sd::check_arkode(ARKStepSetOrder(m, o.max_order), "ARKStepSetOrder");
+    if (roots_ > 0)
+      sd::check_arkode(ARKStepRootInit(m, roots_, root_callback), "ARKStepRootInit");
+  }
+
+  void set_stop_time(double t_s) override {
+    sd::check_arkode(ARKStepSetStopTime(mem_.get(), t_s), "ARKStepSetStopTime");
+  }
+  int evolve(double tout_s, N_Vector yout, double* t_reached_s) override {
+    return ARKStepEvolve(mem_.get(), tout_s, yout, t_reached_s, ARK_NORMAL);
+  }
+  void root_info(int* found) override {
+    sd::check_arkode(ARKStepGetRootInfo(mem_.get(), found), "ARKStepGetRootInfo");
+  }
+  void reinit(double t_s, N_Vector y) override {
+    sd::check_arkode(ARKStepReInit(mem_.get(), rhs_callback, nullptr, t_s, y), "ARKStepReInit");
+  }
+  double internal_time() override {
+    realtype t = 0;
+    sd::check_arkode(ARKStepGetCurrentTime(mem_.get(), &t), "ARKStepGetCurrentTime");
+    return t;
+  }
+  SolverStats segment_stats() override {
+    void* m = mem_.get();
+    SolverStats s;
+    long implicit_evals = 0;
+    sd::check_arkode(ARKStepGetNumSteps(m, &s.steps), "ARKStepGetNumSteps");
+    sd::check_arkode(ARKStepGetNumRhsEvals(m, &s.rhs_evals, &implicit_evals),
+                     "ARKStepGetNumRhsEvals");
+    sd::check_arkode(ARKStepGetNumErrTestFails(m, &s.error_test_failures),
+                     "ARKStepGetNumErrTestFails");
+    sd::check_arkode(ARKStepGetLastStep(m, &s.last_step_s), "ARKStepGetLastStep");
+    sd::check_arkode(ARKStepGetCurrentTime(m, &s.current_time_s), "ARKStepGetCurrentTime");
+    ARKodeButcherTable implicit_table = nullptr, explicit_table = nullptr;
+    sd::check_arkode(ARKStepGetCurrentButcherTables(m, &implicit_table, &explicit_table),
+                     "ARKStepGetCurrentButcherTables");
+    s.last_order = explicit_table ? explicit_table->q : 0;  // fixed order of the RK table
+    if (roots_ > 0) sd::check_arkode(ARKStepGetNumGEvals(m, &s.root_evals), "ARKStepGetNumGEvals");
+    return s;
+  }
+  std::string flag_name(int flag) override {
+    return sd::flag_name(ARKStepGetReturnFlagName, flag);
+  }
+  const char* evolve_call() const override { return "ARKStepEvolve"; }
+
+ private:
+  int roots_;
+  sd::ArkodeMemory mem_;
+};
+
+void validate(const IntegratorOptions& o, std::size_t n) {
+  auto fail = [](const std::string& what) { throw InputError("integrator options: " + what); };
+  if (!(o.rtol > 0) || !std::isfinite(o.rtol)) fail("rtol must be positive and finite");
+  if (o.atol.size() != 1 && o.atol.size() != n)
+    fail("atol needs 1 or " + std::to_string(n) + " values, got " + std::to_string(o.atol.size()));
+  for (double a : o.atol)
+    if (!(a >= 0) || !std::isfinite(a)) fail("atol values must be finite and >= 0");
+  if (!(o.max_step_s >= 0)) fail("max_step_s must be >= 0 (0: no limit)");
+  if (!(o.initial_step_s >= 0)) fail("initial_step_s must be >= 0 (0: estimated)");
+  if (o.max_steps_between_outputs <= 0) fail("max_steps_between_outputs must be positive");
+  const int q = o.max_order;
+  switch (o.method) {
+    case Method::bdf:
+      if (q < 0 || q > 5) fail("max_order for bdf must be 1..5 (0: default 5)");
+      break;
+    case Method::adams:
+      if (q < 0 || q > 12) fail("max_order for adams must be 1..12 (0: default 12)");
+      break;
+    case Method::erk:  // the orders for which ARKStep has a default explicit table
+      if (q != 0 && q != 2 && q != 3 && q != 4 && q != 5 && q != 6 && q != 8)
+        fail("max_order for erk must be 2, 3, 4, 5, 6 or 8 (0: default 4)");
+      break;
+  }
+}
+
+SolverStats& add_counters(SolverStats& to, const SolverStats& from) {
+  to.steps += from.steps;
+  to.rhs_evals += from.rhs_evals;
+  to.jac_evals += from.jac_evals;
+  to.linear_setups += from.linear_setups;
+  to.error_test_failures += from.error_test_failures;
+  to.nonlinear_iterations += from.nonlinear_iterations;
+  to.nonlinear_failures += from.nonlinear_failures;
+  to.root_evals += from.root_evals;
+  return to;
+}
+
+}  // namespace
+
+// ---- TimeIntegrator --------------------------------------------------------------------
+
+struct TimeIntegrator::Impl {
+  // Declaration order is destruction order reversed: the context outlives all handles,
+  // the bridge outlives the solver memory that points at it.
+  sd::Context context;
+  sd::Vector io;  // owns no data: pointed at the caller's arrays for each call
+  CallbackBridge bridge;
+  std::unique_ptr<Stepper> stepper;
+  std::vector<int> roots_found;
+  double t_last_s;                // time of the last output (or of the start)
+  std::vector<double> y_last;     // state at t_last_s
+  SolverStats earlier;            // counters of the segments before the last restart
+  bool segment_started = false;   // an advance() since construction or restart
+
+  Impl(OdeSystem& system, double t0, const double* y0, const IntegratorOptions& o)
+      : context(sd::make_context()),
+        io(sd::make_view_vector(static_cast<long>(system.size()), context.get())),
+        bridge{system, nullptr, {}, {}, {}, false},
+        roots_found(static_cast<std::size_t>(std::max(0, system.num_roots())), 0),
+        t_last_s(t0),
+        y_last(y0, y0 + system.size()) {
+    const long n = static_cast<long>(system.size());
+    sd::Vector atol;
+    if (o.atol.size() > 1) {
+      atol = sd::make_vector(n, context.get());
+      std::copy(o.atol.begin(), o.atol.end(), data(atol.get()));
+    }
+    N_VSetArrayPointer(y_last.data(), io.get());  // read only: the solver clones it
+    if (o.method == Method::erk)
+      stepper = std::make_unique<ArkodeStepper>(o, t0, io.get(), atol.get(), bridge, context.get());
+    else
+      stepper = std::make_unique<CvodeStepper>(o, t0, io.get(), atol.get(), bridge, context.get());
+    N_VSetArrayPointer(nullptr, io.get());
+  }
+
+  [[noreturn]] void fail(int flag, double t_s) {
+    const std::string name = stepper->flag_name(flag);
+    const std::string what = bridge.message.empty()
+                                 ? std::string(stepper->evolve_call()) + ": " + name
+                                 : bridge.message + " [" + name + "]";
+    if (is_usage_error(flag))
+      throw LibraryError(std::string(stepper->evolve_call()) + " failed: " + what);
+    std::string story = what + " at t = " + format_time(t_s) + " s";
+    if (!bridge.non_finite.empty()) story += "; first seen: " + bridge.non_finite;
+    if (!bridge.stall.empty()) story += "; then: " + bridge.stall;
+    throw IntegratorFailure(story, t_s);
+  }
+};
+
+TimeIntegrator::TimeIntegrator(OdeSystem& system, double t0, const double* y0,
+                               const IntegratorOptions& options) {
+  if (system.size() == 0) throw std::invalid_argument("TimeIntegrator: the system has no state");
+  if (system.half_bandwidth() < 0)
+    throw std::invalid_argument("TimeIntegrator: negative half-bandwidth");
+  validate(options, system.size());
+  impl_ = std::make_unique<Impl>(system, t0, y0, options);
+}
+
+TimeIntegrator::~TimeIntegrator() = default;
+TimeIntegrator::TimeIntegrator(TimeIntegrator&&) noexcept = default;
+TimeIntegrator& TimeIntegrator::operator=(TimeIntegrator&&) noexcept = default;
+
+double TimeIntegrator::advance(double tout, double tstop, double* y_out) {
+  Impl& s = *impl_;
+  const double target = std::min(tout, tstop);
+  if (!(target >= s.t_last_s))
+    throw std::invalid_argument("TimeIntegrator::advance: time " + format_time(target) +
+                                " s lies before the last output at " + format_time(s.t_last_s) +
+                                " s");
+  std::fill(s.roots_found.begin(), s.roots_found.end(), 0);
+  if (target == s.t_last_s) {  // nothing to integrate (CVODE would refuse: tout too close)
+    std::copy(s.y_last.begin(), s.y_last.end(), y_out);
+    return target;
+  }
+  // A stop time behind the solver's internal time is refused; then the target lies inside
+  // the last step and is reached by interpolation alone.
+  if (target > s.stepper->internal_time()) s.stepper->set_stop_time(tstop);
+
+  s.bridge.clear();
+  N_VSetArrayPointer(y_out, s.io.get());
+  double reached = s.t_last_s;
+  const int flag = s.stepper->evolve(target, s.io.get(), &reached);
+  N_VSetArrayPointer(nullptr, s.io.get());
+  s.segment_started = true;
+
+  if (s.bridge.error) {
+    std::exception_ptr error = s.bridge.error;
+    s.bridge.clear();
+    std::rethrow_exception(error);
+  }
+  if (flag < 0) s.fail(flag, reached);
+  static_assert(CV_ROOT_RETURN == ARK_ROOT_RETURN, "one root-return code for both integrators");
+  if (flag == CV_ROOT_RETURN) s.stepper->root_info(s.roots_found.data());
+
+  s.t_last_s = reached;
+  std::copy(y_out, y_out + s.y_last.size(), s.y_last.begin());
+  return reached;
+}
+
+const std::vector<int>& TimeIntegrator::root_info() const { return impl_->roots_found; }
+
+void TimeIntegrator::restart(double t, const double* y) {
+  Impl& s = *impl_;
+  // CVODE resets its linear-solver counters only at the first step after ReInit, so a
+  // segment's counters are banked only if it ever stepped.
+  if (s.segment_started) add_counters(s.earlier, s.stepper->segment_stats());
+  s.segment_started = false;
+  std::copy(y, y + s.y_last.size(), s.y_last.begin());
+  s.t_last_s = t;
+  std::fill(s.roots_found.begin(), s.roots_found.end(), 0);
+  N_VSetArrayPointer(s.y_last.data(), s.io.get());  // read only: copied into the solver
+  s.stepper->reinit(t, s.io.get());
+  N_VSetArrayPointer(nullptr, s.io.get());
+}
+
+SolverStats TimeIntegrator::stats() const {
+  const Impl& s = *impl_;
+  SolverStats current;
+  if (s.segment_started) {
+    current = s.stepper->segment_stats();
+  } else {
+    current.current_time_s = s.t_last_s;
+  }
+  return add_counters(current, s.earlier);
+}
+
+}  // namespace hawser
