@@ -29,6 +29,14 @@ class OdeSystem {
   virtual void rhs(double t, const double* y, double* ydot) = 0;
   /// J = df/dy at (t, y); fy = f(t, y). J arrives zeroed.
   virtual void jacobian(double t, const double* y, const double* fy, const BandJacobian& J) = 0;
+  /// Optional structured Newton solver. An implicit integrator solves (I - gamma J) x = b at
+  /// every Newton iteration; a system that knows its structure may do that itself, faster
+  /// than a general band factorisation. newton_jacobian() evaluates and keeps J at (t, y);
+  /// newton_factor() factors I - gamma J for the kept J; newton_solve() overwrites b with x.
+  virtual bool has_newton_solver() const { return false; }
+  virtual void newton_jacobian(double /*t*/, const double* /*y*/) {}
+  virtual void newton_factor(double /*gamma*/) {}
+  virtual void newton_solve(double* /*b*/) const {}
   /// Root functions g_k(t, y), located by the integrator (a sign change stops it).
   virtual int num_roots() const { return 0; }
   virtual void roots(double /*t*/, const double* /*y*/, double* /*g*/) {}

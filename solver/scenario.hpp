@@ -41,6 +41,7 @@ struct SimulationSpec {
   double atol_position_m = 0.0;
   double atol_velocity_m_s = 0.0;
   double max_step_s = 0.0;      // 0: none
+  int max_order = 0;            // 0: the method's recommended order
   bool stop_on_rupture = true;
 };
 

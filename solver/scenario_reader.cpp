@@ -376,6 +376,18 @@ ReadScenario ScenarioReader::read_text(const std::string& text, std::vector<Prob
       problems.push_back({"--set " + o, path, "malformed value: " + e.msg});
       continue;
     }
+    // Changing one property of a named planet or material: write the entry out inline first.
+    const std::string head = path.substr(0, path.find('.'));
+    const KeySpec* head_spec = KeyReference::builtin().find(head);
+    if (head != path && head_spec && head_spec->type == "name_or_map" && root[head] && root[head].IsScalar()) {
+      const YAML::Node table = YAML::Load(embedded_config().at(head_spec->table));
+      const YAML::Node entry = table.begin()->second[root[head].Scalar()];
+      if (entry) {
+        YAML::Node inline_entry = YAML::Clone(entry);
+        inline_entry["name"] = root[head].Scalar();
+        root[head] = inline_entry;
+      }
+    }
     if (!set_path(root, path, v)) {
       problems.push_back({"--set " + o, path, "cannot set below a value that is not a mapping (a named planet or material must be given inline to change one property)"});
       continue;

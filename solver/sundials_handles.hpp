@@ -13,6 +13,8 @@
 #include <cvode/cvode.h>
 #include <cvode/cvode_ls.h>
 #include <nvector/nvector_serial.h>
+
+#include "solver/sundials_fast_vector.hpp"
 #include <sundials/sundials_context.h>
 #include <sundials/sundials_linearsolver.h>
 #include <sundials/sundials_matrix.h>
@@ -98,12 +100,18 @@ inline Context make_context() {
 }
 
 /// A serial vector that owns no data: it is pointed at caller arrays (copy-free I/O).
+/// Serial vectors carry the compiled arithmetic of sundials_fast_vector.hpp (Debian's
+/// SUNDIALS is built unoptimised); every clone the solvers make inherits it.
 inline Vector make_view_vector(long n, SUNContext ctx) {
-  return Vector(check_created(N_VNewEmpty_Serial(n, ctx), "N_VNewEmpty_Serial"));
+  Vector v(check_created(N_VNewEmpty_Serial(n, ctx), "N_VNewEmpty_Serial"));
+  install_fast_serial_ops(v.get());
+  return v;
 }
 
 inline Vector make_vector(long n, SUNContext ctx) {
-  return Vector(check_created(N_VNew_Serial(n, ctx), "N_VNew_Serial"));
+  Vector v(check_created(N_VNew_Serial(n, ctx), "N_VNew_Serial"));
+  install_fast_serial_ops(v.get());
+  return v;
 }
 
 }  // namespace hawser::sundials

@@ -1,5 +1,6 @@
 #include "solver/tether_system.hpp"
 
+#include <Eigen/LU>
 #include <algorithm>
 
 namespace hawser {
@@ -10,7 +11,12 @@ TetherSystem::TetherSystem(const TetherModel& model)
       x_(3, model.nodes()),
       v_(3, model.nodes()),
       f_(3, model.nodes()),
-      jac_(model.nodes()) {}
+      jac_(model.nodes()),
+      newton_jac_(model.nodes()),
+      dinv_(model.nodes()),
+      lower_(model.nodes()),
+      upper_(model.nodes()),
+      work_(model.nodes()) {}
 
 void TetherSystem::node_state(double t, const double* y, Matrix3X& x, Matrix3X& v) const {
   const std::size_t n = model_.nodes();
@@ -123,6 +129,60 @@ TetherDiagnostics TetherSystem::diagnose(double t, const double* y) const {
     if (d.tension_n[e] == 0.0) ++d.slack_elements;
   }
   return d;
+}
+
+}  // namespace hawser
+
+namespace hawser {
+
+void TetherSystem::newton_jacobian(double t, const double* y) {
+  node_state(t, y, x_, v_);
+  const TetherState s{t, x_, v_, model_.mesh.node_mass};
+  newton_jac_.set_zero();
+  for (const ForceModel* m : model_.forces()) m->add_jacobian(s, newton_jac_);
+}
+
+void TetherSystem::newton_factor(double gamma) {
+  newton_gamma_ = gamma;
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  const double g2 = gamma * gamma;
+  auto block = [&](std::size_t k, std::size_t j) -> Eigen::Matrix3d {
+    Eigen::Matrix3d a = -gamma * newton_jac_.dv(k, j) - g2 * newton_jac_.dx(k, j);
+    if (k == j) a.diagonal().array() += model_.mesh.node_mass[k];
+    return a;
+  };
+  // D_first = A_ff; L_k = A_{k,k-1} D_{k-1}^-1; D_k = A_kk - L_k A_{k-1,k}.
+  dinv_[first] = block(first, first).inverse();
+  for (std::size_t k = first + 1; k <= last; ++k) {
+    upper_[k - 1] = block(k - 1, k);
+    lower_[k] = block(k, k - 1) * dinv_[k - 1];
+    dinv_[k] = (block(k, k) - lower_[k] * upper_[k - 1]).inverse();
+  }
+}
+
+void TetherSystem::newton_solve(double* b) const {
+  using Vec3 = Eigen::Map<Eigen::Vector3d>;
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  const double gamma = newton_gamma_;
+  // Per free node k the state holds u_k then v_k (solver/state_layout.hpp): 6 values at 6 (k - first).
+  auto ru = [&](std::size_t k) { return Vec3(b + StateLayout::kPerNode * (k - first)); };
+  auto rv = [&](std::size_t k) { return Vec3(b + StateLayout::kPerNode * (k - first) + 3); };
+  // Right-hand side of the reduced system: m_k r_v,k + gamma sum_j dF_k/dx_j r_u,j.
+  for (std::size_t k = first; k <= last; ++k) {
+    Eigen::Vector3d r = model_.mesh.node_mass[k] * rv(k) + gamma * (newton_jac_.dx(k, k) * ru(k));
+    if (k > first) r.noalias() += gamma * (newton_jac_.dx(k, k - 1) * ru(k - 1));
+    if (k < last) r.noalias() += gamma * (newton_jac_.dx(k, k + 1) * ru(k + 1));
+    work_[k] = r;
+  }
+  // Forward elimination, then back substitution.
+  for (std::size_t k = first + 1; k <= last; ++k) work_[k] -= lower_[k] * work_[k - 1];
+  work_[last] = dinv_[last] * work_[last];
+  for (std::size_t k = last; k-- > first;) work_[k] = dinv_[k] * (work_[k] - upper_[k] * work_[k + 1]);
+  // dv from the reduced system, du = r_u + gamma dv; the quadrature rows are identity.
+  for (std::size_t k = first; k <= last; ++k) {
+    ru(k) += gamma * work_[k];
+    rv(k) = work_[k];
+  }
 }
 
 }  // namespace hawser

@@ -35,6 +35,18 @@ class TetherSystem : public OdeSystem {
   int num_roots() const override { return 1; }
   void roots(double t, const double* y, double* g) override;
 
+  /// Newton systems (I - gamma J) x = b reduced to the velocity corrections: with
+  /// du = r_u + gamma dv, each free node k gives
+  ///   sum_j (m_k delta_kj I - gamma dF_k/dv_j - gamma^2 dF_k/dx_j) dv_j = m_k r_v,k + gamma sum_j dF_k/dx_j r_u,j,
+  /// a block-tridiagonal system of 3x3 blocks solved by block Gaussian elimination (block
+  /// Thomas algorithm) in O(N). The matrix is the tether's effective dynamic stiffness:
+  /// mass plus damping plus (positive) stiffness terms, so elimination without pivoting
+  /// between blocks is stable; each diagonal block is inverted exactly.
+  bool has_newton_solver() const override { return true; }
+  void newton_jacobian(double t, const double* y) override;
+  void newton_factor(double gamma) override;
+  void newton_solve(double* b) const override;
+
   const StateLayout& layout() const { return layout_; }
   const TetherModel& model() const { return model_; }
   /// Positions and velocities of all nodes at (t, y) [m, m/s].
@@ -46,6 +58,10 @@ class TetherSystem : public OdeSystem {
   StateLayout layout_;
   Matrix3X x_, v_, f_;    // work arrays (all nodes)
   NodeJacobian jac_;
+  NodeJacobian newton_jac_;                 // Jacobian of the last newton_jacobian()
+  double newton_gamma_ = 0.0;
+  std::vector<Eigen::Matrix3d> dinv_, lower_, upper_;  // per free node: D^-1, L, A_{k,k+1}
+  mutable std::vector<Eigen::Vector3d> work_;
 };
 
 }  // namespace hawser

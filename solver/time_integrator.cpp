@@ -134,6 +134,107 @@ int jacobian_callback(realtype t, N_Vector y, N_Vector fy, SUNMatrix J, void* us
   });
 }
 
+// ---- the system's own Newton solver behind CVODE's matrix-based interface ---------------
+
+/// CVODE's matrix-based linear solver interface decides when to evaluate the Jacobian
+/// (every 20 steps, after convergence failures) and when to refactor (gamma changed), and
+/// scales corrections between refactorisations; only matrix-based solvers get this logic.
+/// So the system's structured solver (OdeSystem::newton_*) sits behind a stand-in matrix:
+/// CVODE's Jacobian call makes the system evaluate and keep J, the matrix records the
+/// gamma of "A = I - gamma J" (SUNMatScaleAddI), and the linear solver's setup factors
+/// the system for that gamma and its solve solves with it. The stand-in holds no numbers.
+struct StandInMatrix {
+  double gamma = 0.0;  // A = I - gamma J, as CVODE last formed it
+};
+
+StandInMatrix& stand_in(SUNMatrix a) { return *static_cast<StandInMatrix*>(a->content); }
+
+SUNMatrix_ID stand_in_id(SUNMatrix) { return SUNMATRIX_CUSTOM; }
+void stand_in_destroy(SUNMatrix a);
+SUNMatrix stand_in_clone(SUNMatrix a) {
+  SUNMatrix b = SUNMatNewEmpty(a->sunctx);
+  if (b == nullptr) return nullptr;
+  SUNMatCopyOps(a, b);
+  b->content = new StandInMatrix(stand_in(a));
+  return b;
+}
+void stand_in_destroy(SUNMatrix a) {
+  if (a == nullptr) return;
+  delete static_cast<StandInMatrix*>(a->content);
+  a->content = nullptr;
+  SUNMatFreeEmpty(a);
+}
+int stand_in_zero(SUNMatrix a) {
+  stand_in(a).gamma = 0.0;  // A = 0 stands for "J about to be evaluated"
+  return SUNMAT_SUCCESS;
+}
+int stand_in_copy(SUNMatrix a, SUNMatrix b) {
+  stand_in(b) = stand_in(a);
+  return SUNMAT_SUCCESS;
+}
+int stand_in_scale_add_identity(realtype c, SUNMatrix a) {
+  stand_in(a).gamma = -c;  // CVODE forms A = I - gamma J as ScaleAddI(-gamma, J)
+  return SUNMAT_SUCCESS;
+}
+
+SUNMatrix make_stand_in_matrix(SUNContext ctx) {
+  SUNMatrix a = sd::check_created(SUNMatNewEmpty(ctx), "SUNMatNewEmpty");
+  a->ops->getid = stand_in_id;
+  a->ops->clone = stand_in_clone;
+  a->ops->destroy = stand_in_destroy;
+  a->ops->zero = stand_in_zero;
+  a->ops->copy = stand_in_copy;
+  a->ops->scaleaddi = stand_in_scale_add_identity;
+  a->content = new StandInMatrix();
+  return a;
+}
+
+/// Jacobian callback for the structured solver: the system evaluates and keeps J.
+int system_jacobian_callback(realtype t, N_Vector y, N_Vector, SUNMatrix, void* user_data, N_Vector, N_Vector,
+                             N_Vector) {
+  CallbackBridge& b = bridge_of(user_data);
+  return b.guard([&] { b.system.newton_jacobian(t, data(y)); });
+}
+
+struct NewtonSolverContent {
+  CallbackBridge* bridge;
+};
+
+NewtonSolverContent& newton_content(SUNLinearSolver ls) { return *static_cast<NewtonSolverContent*>(ls->content); }
+SUNLinearSolver_Type newton_type(SUNLinearSolver) { return SUNLINEARSOLVER_DIRECT; }
+SUNLinearSolver_ID newton_id(SUNLinearSolver) { return SUNLINEARSOLVER_CUSTOM; }
+
+int newton_setup(SUNLinearSolver ls, SUNMatrix a) {
+  CallbackBridge& b = *newton_content(ls).bridge;
+  const double gamma = stand_in(a).gamma;
+  return b.guard([&] { b.system.newton_factor(gamma); }) == 0 ? SUNLS_SUCCESS : SUNLS_PACKAGE_FAIL_UNREC;
+}
+
+int newton_solve(SUNLinearSolver ls, SUNMatrix, N_Vector x, N_Vector b, realtype) {
+  CallbackBridge& br = *newton_content(ls).bridge;
+  N_VScale(1.0, b, x);
+  return br.guard([&] { br.system.newton_solve(data(x)); }) == 0 ? SUNLS_SUCCESS : SUNLS_PACKAGE_FAIL_UNREC;
+}
+
+int newton_free(SUNLinearSolver ls) {
+  if (ls == nullptr) return SUNLS_SUCCESS;
+  delete static_cast<NewtonSolverContent*>(ls->content);
+  ls->content = nullptr;
+  SUNLinSolFreeEmpty(ls);
+  return SUNLS_SUCCESS;
+}
+
+SUNLinearSolver make_newton_solver(CallbackBridge& bridge, SUNContext ctx) {
+  SUNLinearSolver ls = sd::check_created(SUNLinSolNewEmpty(ctx), "SUNLinSolNewEmpty");
+  ls->content = new NewtonSolverContent{&bridge};
+  ls->ops->gettype = newton_type;
+  ls->ops->getid = newton_id;
+  ls->ops->setup = newton_setup;
+  ls->ops->solve = newton_solve;
+  ls->ops->free = newton_free;
+  return ls;
+}
+
 /// Keeps SUNDIALS' error text for the exception. Of the warnings (code 99) only one
 /// matters: "t + h = t", a step below round-off. CVODE and ARKODE then "continue anyway"
 /// and can burn the whole step budget without moving (seen when f turns NaN beyond a
@@ -205,8 +306,15 @@ class CvodeStepper final : public Stepper {
     if (o.initial_step_s > 0)
       sd::check_cvode(CVodeSetInitStep(m, o.initial_step_s), "CVodeSetInitStep");
     if (o.max_order > 0) sd::check_cvode(CVodeSetMaxOrd(m, o.max_order), "CVodeSetMaxOrd");
+    if (bdf_ && o.stability_limit_detection)
+      sd::check_cvode(CVodeSetStabLimDet(m, SUNTRUE), "CVodeSetStabLimDet");
 
-    if (bdf_) {
+    if (bdf_ && bridge.system.has_newton_solver()) {
+      matrix_.reset(make_stand_in_matrix(ctx));
+      linear_.reset(make_newton_solver(bridge, ctx));
+      sd::check_cvls(CVodeSetLinearSolver(m, linear_.get(), matrix_.get()), "CVodeSetLinearSolver");
+      sd::check_cvls(CVodeSetJacFn(m, system_jacobian_callback), "CVodeSetJacFn");
+    } else if (bdf_) {
       // SUNBandMatrix (6.x) sets the storage upper bandwidth to mu + ml itself, the room
       // the band LU factorisation needs for fill-in.
       const long n = N_VGetLength(y0);

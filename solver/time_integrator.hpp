@@ -31,7 +31,8 @@ struct IntegratorOptions {
   double max_step_s = 0;            // largest step (s); 0: no limit
   double initial_step_s = 0;        // first step (s); 0: the solver estimates it
   long max_steps_between_outputs = 1000000;  // per advance() call
-  int max_order = 0;                // 0: solver default (bdf 5, adams 12, erk 4);
+  int max_order = 0;                // 0: solver default (bdf 5, adams 12, erk 4)
+  bool stability_limit_detection = false;  // bdf: CVODE's BDF stability limit detection;
                                     // for erk, the order of ARKStep's default table
 };
 

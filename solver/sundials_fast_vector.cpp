@@ -1,0 +1,239 @@
+#include "solver/sundials_fast_vector.hpp"
+
+#include <nvector/nvector_serial.h>
+
+#include <algorithm>
+#include <cmath>
+#include <vector>
+
+namespace hawser::sundials {
+namespace {
+
+inline double* d(N_Vector v) { return NV_DATA_S(v); }
+inline sunindextype n(N_Vector v) { return NV_LENGTH_S(v); }
+
+void linear_sum(realtype a, N_Vector x, realtype b, N_Vector y, N_Vector z) {
+  const double *xd = d(x), *yd = d(y);
+  double* zd = d(z);
+  const sunindextype len = n(x);
+  for (sunindextype i = 0; i < len; ++i) zd[i] = a * xd[i] + b * yd[i];
+}
+void constant(realtype c, N_Vector z) { std::fill(d(z), d(z) + n(z), c); }
+void prod(N_Vector x, N_Vector y, N_Vector z) {
+  const double *xd = d(x), *yd = d(y);
+  double* zd = d(z);
+  for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = xd[i] * yd[i];
+}
+void div(N_Vector x, N_Vector y, N_Vector z) {
+  const double *xd = d(x), *yd = d(y);
+  double* zd = d(z);
+  for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = xd[i] / yd[i];
+}
+void scale(realtype c, N_Vector x, N_Vector z) {
+  const double* xd = d(x);
+  double* zd = d(z);
+  for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = c * xd[i];
+}
+void absolute(N_Vector x, N_Vector z) {
+  const double* xd = d(x);
+  double* zd = d(z);
+  for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = std::abs(xd[i]);
+}
+void inverse(N_Vector x, N_Vector z) {
+  const double* xd = d(x);
+  double* zd = d(z);
+  for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = 1.0 / xd[i];
+}
+void add_const(N_Vector x, realtype b, N_Vector z) {
+  const double* xd = d(x);
+  double* zd = d(z);
+  for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = xd[i] + b;
+}
+realtype dot(N_Vector x, N_Vector y) {
+  const double *xd = d(x), *yd = d(y);
+  double s = 0.0;
+  for (sunindextype i = 0, len = n(x); i < len; ++i) s += xd[i] * yd[i];
+  return s;
+}
+realtype max_norm(N_Vector x) {
+  const double* xd = d(x);
+  double m = 0.0;
+  for (sunindextype i = 0, len = n(x); i < len; ++i) m = std::max(m, std::abs(xd[i]));
+  return m;
+}
+realtype wsqr_sum(N_Vector x, N_Vector w) {
+  const double *xd = d(x), *wd = d(w);
+  double s = 0.0;
+  for (sunindextype i = 0, len = n(x); i < len; ++i) {
+    const double p = xd[i] * wd[i];
+    s += p * p;
+  }
+  return s;
+}
+realtype wsqr_sum_mask(N_Vector x, N_Vector w, N_Vector id) {
+  const double *xd = d(x), *wd = d(w), *md = d(id);
+  double s = 0.0;
+  for (sunindextype i = 0, len = n(x); i < len; ++i)
+    if (md[i] > 0.0) {
+      const double p = xd[i] * wd[i];
+      s += p * p;
+    }
+  return s;
+}
+realtype wrms_norm(N_Vector x, N_Vector w) { return std::sqrt(wsqr_sum(x, w) / n(x)); }
+realtype wrms_norm_mask(N_Vector x, N_Vector w, N_Vector id) { return std::sqrt(wsqr_sum_mask(x, w, id) / n(x)); }
+realtype min_value(N_Vector x) {
+  const double* xd = d(x);
+  double m = xd[0];
+  for (sunindextype i = 1, len = n(x); i < len; ++i) m = std::min(m, xd[i]);
+  return m;
+}
+realtype wl2_norm(N_Vector x, N_Vector w) { return std::sqrt(wsqr_sum(x, w)); }
+realtype l1_norm(N_Vector x) {
+  const double* xd = d(x);
+  double s = 0.0;
+  for (sunindextype i = 0, len = n(x); i < len; ++i) s += std::abs(xd[i]);
+  return s;
+}
+void compare(realtype c, N_Vector x, N_Vector z) {
+  const double* xd = d(x);
+  double* zd = d(z);
+  for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = std::abs(xd[i]) >= c ? 1.0 : 0.0;
+}
+booleantype inv_test(N_Vector x, N_Vector z) {
+  const double* xd = d(x);
+  double* zd = d(z);
+  bool ok = true;
+  for (sunindextype i = 0, len = n(x); i < len; ++i) {
+    if (xd[i] == 0.0)
+      ok = false;
+    else
+      zd[i] = 1.0 / xd[i];
+  }
+  return ok ? SUNTRUE : SUNFALSE;
+}
+int linear_combination(int nv, realtype* c, N_Vector* x, N_Vector z) {
+  const sunindextype len = n(z);
+  double* zd = d(z);
+  if (nv == 1) {
+    scale(c[0], x[0], z);
+    return 0;
+  }
+  // z may alias x[0] (SUNDIALS allows it): then accumulate onto it.
+  int start = 0;
+  if (x[0] == z) {
+    if (c[0] != 1.0)
+      for (sunindextype i = 0; i < len; ++i) zd[i] *= c[0];
+    start = 1;
+  } else {
+    const double* x0 = d(x[0]);
+    const double c0 = c[0];
+    for (sunindextype i = 0; i < len; ++i) zd[i] = c0 * x0[i];
+    start = 1;
+  }
+  for (int k = start; k < nv; ++k) {
+    const double* xk = d(x[k]);
+    const double ck = c[k];
+    for (sunindextype i = 0; i < len; ++i) zd[i] += ck * xk[i];
+  }
+  return 0;
+}
+int scale_add_multi(int nv, realtype* a, N_Vector x, N_Vector* y, N_Vector* z) {
+  const double* xd = d(x);
+  const sunindextype len = n(x);
+  for (int k = 0; k < nv; ++k) {
+    const double* yd = d(y[k]);
+    double* zd = d(z[k]);
+    const double ak = a[k];
+    for (sunindextype i = 0; i < len; ++i) zd[i] = ak * xd[i] + yd[i];
+  }
+  return 0;
+}
+int dot_prod_multi(int nv, N_Vector x, N_Vector* y, realtype* out) {
+  for (int k = 0; k < nv; ++k) out[k] = dot(x, y[k]);
+  return 0;
+}
+int linear_sum_array(int nv, realtype a, N_Vector* x, realtype b, N_Vector* y, N_Vector* z) {
+  for (int k = 0; k < nv; ++k) linear_sum(a, x[k], b, y[k], z[k]);
+  return 0;
+}
+int scale_array(int nv, realtype* c, N_Vector* x, N_Vector* z) {
+  for (int k = 0; k < nv; ++k) scale(c[k], x[k], z[k]);
+  return 0;
+}
+int const_array(int nv, realtype c, N_Vector* z) {
+  for (int k = 0; k < nv; ++k) constant(c, z[k]);
+  return 0;
+}
+int wrms_norm_array(int nv, N_Vector* x, N_Vector* w, realtype* out) {
+  for (int k = 0; k < nv; ++k) out[k] = wrms_norm(x[k], w[k]);
+  return 0;
+}
+int wrms_norm_mask_array(int nv, N_Vector* x, N_Vector* w, N_Vector id, realtype* out) {
+  for (int k = 0; k < nv; ++k) out[k] = wrms_norm_mask(x[k], w[k], id);
+  return 0;
+}
+int scale_add_multi_array(int nv, int ns, realtype* a, N_Vector* x, N_Vector** y, N_Vector** z) {
+  // z[j][i] = a[j] * x[i] + y[j][i]  (nvector_serial.c, 6.4)
+  for (int i = 0; i < nv; ++i) {
+    const double* xd = d(x[i]);
+    const sunindextype len = n(x[i]);
+    for (int j = 0; j < ns; ++j) {
+      const double* yd = d(y[j][i]);
+      double* zd = d(z[j][i]);
+      for (sunindextype k = 0; k < len; ++k) zd[k] = a[j] * xd[k] + yd[k];
+    }
+  }
+  return 0;
+}
+int linear_combination_array(int nv, int ns, realtype* c, N_Vector** x, N_Vector* z) {
+  // z[i] = sum_j c[j] * x[j][i]
+  std::vector<N_Vector> column(static_cast<std::size_t>(ns));
+  for (int i = 0; i < nv; ++i) {
+    for (int j = 0; j < ns; ++j) column[j] = x[j][i];
+    linear_combination(ns, c, column.data(), z[i]);
+  }
+  return 0;
+}
+
+}  // namespace
+
+void install_fast_serial_ops(N_Vector v) {
+  N_Vector_Ops o = v->ops;
+  o->nvlinearsum = linear_sum;
+  o->nvconst = constant;
+  o->nvprod = prod;
+  o->nvdiv = div;
+  o->nvscale = scale;
+  o->nvabs = absolute;
+  o->nvinv = inverse;
+  o->nvaddconst = add_const;
+  o->nvdotprod = dot;
+  o->nvmaxnorm = max_norm;
+  o->nvwrmsnorm = wrms_norm;
+  o->nvwrmsnormmask = wrms_norm_mask;
+  o->nvmin = min_value;
+  o->nvwl2norm = wl2_norm;
+  o->nvl1norm = l1_norm;
+  o->nvcompare = compare;
+  o->nvinvtest = inv_test;
+  o->nvlinearcombination = linear_combination;
+  o->nvscaleaddmulti = scale_add_multi;
+  o->nvdotprodmulti = dot_prod_multi;
+  o->nvlinearsumvectorarray = linear_sum_array;
+  o->nvscalevectorarray = scale_array;
+  o->nvconstvectorarray = const_array;
+  o->nvwrmsnormvectorarray = wrms_norm_array;
+  o->nvwrmsnormmaskvectorarray = wrms_norm_mask_array;
+  o->nvscaleaddmultivectorarray = scale_add_multi_array;
+  o->nvlinearcombinationvectorarray = linear_combination_array;
+  o->nvdotprodlocal = dot;
+  o->nvmaxnormlocal = max_norm;
+  o->nvminlocal = min_value;
+  o->nvl1normlocal = l1_norm;
+  o->nvinvtestlocal = inv_test;
+  o->nvwsqrsumlocal = wsqr_sum;
+  o->nvwsqrsummasklocal = wsqr_sum_mask;
+}
+
+}  // namespace hawser::sundials

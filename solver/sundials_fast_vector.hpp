@@ -1,0 +1,21 @@
+#pragma once
+// Compiled replacements for the arithmetic of SUNDIALS' serial N_Vector.
+//
+// Why: Debian 12's SUNDIALS 6.4.1 libraries are built without optimisation (their
+// machine code keeps every local on the stack), so N_VLinearSum and friends cost about
+// 20 instructions per element; at 6,000 state components they dominated the run time
+// (callgrind: 70% of all instructions in a 100-element run). SUNDIALS lets a vector carry
+// its own operations table; install_fast_serial_ops() replaces the arithmetic entries of
+// a serial vector's table with the same operations compiled here with the project's flags.
+// Clones copy the table, so every vector the integrator makes from this one inherits it.
+// Semantics follow nvector_serial.c of SUNDIALS 6.4 (BSD-3-Clause) operation by operation;
+// tests/unit/test_fast_vector.cpp checks each against the library's own implementation.
+#include <sundials/sundials_nvector.h>
+
+namespace hawser::sundials {
+
+/// Replaces the arithmetic operations of a serial N_Vector (created by N_VNew_Serial,
+/// N_VNewEmpty_Serial or N_VMake_Serial) with compiled ones, and enables the fused ones.
+void install_fast_serial_ops(N_Vector v);
+
+}  // namespace hawser::sundials
