@@ -4,6 +4,7 @@
 
 #include <iostream>
 
+#include "solver/cmd_modes.hpp"
 #include "solver/commands.hpp"
 #include "solver/errors.hpp"
 
@@ -30,6 +31,12 @@ int main(int argc, char** argv) {
   add_common(run);
   std::string output;
   run->add_option("-o,--output", output, "result file (default: <scenario name>.h5 in the current directory)");
+  CLI::App* modes = app.add_subcommand("modes", "periods, damping, kinds and shapes of the lowest modes about the equilibrium");
+  add_common(modes);
+  int modes_k = 10;
+  modes->add_option("-k", modes_k, "number of modes, lowest first")->capture_default_str();
+  modes->add_option("-o,--output", output, "write the mode shapes to this HDF5 file");
+  modes->add_flag("--json", json, "print JSON (stable keys, units in the key names)");
 
   try {
     app.parse(argc, argv);
@@ -42,6 +49,7 @@ int main(int argc, char** argv) {
     if (design->parsed()) return cmd_design(opt, json);
     if (keys->parsed()) return cmd_keys();
     if (run->parsed()) return cmd_run(opt, output);
+    if (modes->parsed()) return cmd_modes(opt, modes_k, output, json);
   } catch (const InputError& e) {
     std::cerr << e.what();
     if (std::string(e.what()).back() != '\n') std::cerr << '\n';
