@@ -1,0 +1,272 @@
+// Dryden turbulence (MIL-F-8785C, section 3.7.3): variance, spectrum, correlation, seeds, altitude.
+//
+// The analytic forms the series must follow are written out here, independently of the model
+// (one-sided in the temporal frequency f [Hz], tau = L / V, x = 2 pi f tau):
+//   Phi_u(f) = 2 pi Phi_u(omega) = sigma^2 4 tau / (1 + x^2)
+//   Phi_v(f) = sigma^2 2 tau (1 + 3 x^2) / (1 + x^2)^2
+// from Phi_u(Omega) = sigma^2 (2L/pi) / (1 + (L Omega)^2), Phi_v(Omega) = sigma^2 (L/pi)
+// (1 + 3 (L Omega)^2) / (1 + (L Omega)^2)^2, omega = V Omega, Phi(omega) = Phi(Omega) / V.
+// Their autocorrelations (the cosine transforms; Dryden's longitudinal and lateral correlation
+// functions, e.g. Hoblit, Gust Loads on Aircraft, 1988, recalled from memory, and checked
+// numerically against the transform of the spectrum while writing this test):
+//   rho_u(t) = exp(-t/tau),   rho_v(t) = (1 - t / (2 tau)) exp(-t/tau).
+// Statistical errors (Bartlett's formula for the variance of a sample variance of a Gaussian
+// process over a time T, Var(s^2) = (2/T) integral C(t)^2 dt):
+//   u: Var(s^2) / sigma^4 = 2 tau / T,   v, w: 1.25 tau / T.
+#include <catch2/catch.hpp>
+
+#include <cmath>
+#include <complex>
+#include <unsupported/Eigen/FFT>
+#include <vector>
+
+#include "models/dryden_turbulence.hpp"
+#include "models/wind_profile.hpp"
+
+using namespace hawser;
+
+namespace {
+constexpr double kPi = 3.14159265358979323846;
+
+DrydenStation station(double h, double v, double su, double sv, double sw, double lu, double lv, double lw) {
+  DrydenStation s;
+  s.altitude_m = h;
+  s.mean_speed_m_s = v;
+  s.sigma_u_m_s = su;
+  s.sigma_v_m_s = sv;
+  s.sigma_w_m_s = sw;
+  s.scale_u_m = lu;
+  s.scale_v_m = lv;
+  s.scale_w_m = lw;
+  return s;
+}
+
+// The long series shared by the variance and spectrum checks: V = 20 m/s, L = 100, 80, 60 m
+// (tau = 5, 4, 3 s), sigma = 2, 1.5, 1 m/s; dt = 0.1 s (tau/30 or finer), 2^21 samples (58 h).
+constexpr double kDt = 0.1;
+constexpr std::size_t kN = std::size_t(1) << 21;
+const double kTau[3] = {5.0, 4.0, 3.0};
+const double kSigma[3] = {2.0, 1.5, 1.0};
+
+const std::vector<Eigen::Vector3d>& long_series() {
+  static const std::vector<Eigen::Vector3d> y = [] {
+    const DrydenTurbulence d({station(100.0, 20.0, 2.0, 1.5, 1.0, 100.0, 80.0, 60.0)}, 20240501, kDt,
+                             kDt * static_cast<double>(kN - 1));
+    std::vector<Eigen::Vector3d> out(kN);
+    for (std::size_t k = 0; k < kN; ++k) out[k] = d.velocity_uvw(100.0, kDt * static_cast<double>(k));
+    return out;
+  }();
+  return y;
+}
+
+// Welch's averaged periodogram (Welch, IEEE Trans. Audio Electroacoustics 15, 1967): Hann
+// window, 50 % overlap, one-sided density per Hz: P_k = 2 |X_k|^2 / (fs sum w^2). On the long
+// series below it agrees with scipy.signal.welch (window 'hann', nperseg 2048, noverlap 1024,
+// detrend 'constant') to every printed digit (checked while writing this test).
+std::vector<double> welch(const std::vector<double>& x, std::size_t nfft, double fs, std::size_t& segments) {
+  std::vector<double> w(nfft), p(nfft / 2 + 1, 0.0), seg(nfft);
+  double w2 = 0.0;
+  for (std::size_t n = 0; n < nfft; ++n) {
+    w[n] = 0.5 - 0.5 * std::cos(2.0 * kPi * static_cast<double>(n) / static_cast<double>(nfft));  // periodic Hann
+    w2 += w[n] * w[n];
+  }
+  Eigen::FFT<double> fft;
+  std::vector<std::complex<double>> spec;
+  segments = 0;
+  for (std::size_t start = 0; start + nfft <= x.size(); start += nfft / 2) {
+    double mean = 0.0;
+    for (std::size_t n = 0; n < nfft; ++n) mean += x[start + n];
+    mean /= static_cast<double>(nfft);
+    for (std::size_t n = 0; n < nfft; ++n) seg[n] = (x[start + n] - mean) * w[n];
+    fft.fwd(spec, seg);
+    for (std::size_t k = 0; k <= nfft / 2; ++k) p[k] += std::norm(spec[k]);
+    ++segments;
+  }
+  for (std::size_t k = 0; k <= nfft / 2; ++k) p[k] *= (k == 0 || k == nfft / 2 ? 1.0 : 2.0) / (fs * w2 * segments);
+  return p;
+}
+
+double dryden_u(double sigma, double tau, double f) {
+  const double x = 2.0 * kPi * f * tau;
+  return sigma * sigma * 4.0 * tau / (1.0 + x * x);
+}
+double dryden_v(double sigma, double tau, double f) {
+  const double x = 2.0 * kPi * f * tau;
+  return sigma * sigma * 2.0 * tau * (1.0 + 3.0 * x * x) / ((1.0 + x * x) * (1.0 + x * x));
+}
+
+double correlation(const std::vector<double>& a, const std::vector<double>& b, std::size_t lag) {
+  double ab = 0.0, aa = 0.0, bb = 0.0;
+  for (std::size_t k = 0; k + lag < a.size(); ++k) {
+    ab += a[k] * b[k + lag];
+    aa += a[k] * a[k];
+    bb += b[k + lag] * b[k + lag];
+  }
+  return ab / std::sqrt(aa * bb);
+}
+
+std::vector<double> component(const std::vector<Eigen::Vector3d>& y, int c) {
+  std::vector<double> out(y.size());
+  for (std::size_t k = 0; k < y.size(); ++k) out[k] = y[k](c);
+  return out;
+}
+}  // namespace
+
+TEST_CASE("Dryden turbulence: variance of a long series is sigma^2", "[environment]") {
+  const auto& y = long_series();
+  const double t_total = kDt * static_cast<double>(kN);
+  for (int c = 0; c < 3; ++c) {
+    double mean = 0.0, var = 0.0;
+    for (const auto& v : y) {
+      mean += v(c);
+      var += v(c) * v(c);
+    }
+    mean /= static_cast<double>(kN);
+    var /= static_cast<double>(kN);  // about the known mean 0
+    const double s2 = kSigma[c] * kSigma[c];
+    // Standard errors from the header: Var(s^2) = (2 tau / T) sigma^4 for u, (1.25 tau / T) sigma^4
+    // for v, w; Var(mean) = (integral rho dt / T) sigma^2 = (2 tau / T) sigma^2 for u, (tau / T) for v, w.
+    const double rel_sd_var = std::sqrt((c == 0 ? 2.0 : 1.25) * kTau[c] / t_total);
+    const double sd_mean = kSigma[c] * std::sqrt((c == 0 ? 2.0 : 1.0) * kTau[c] / t_total);
+    INFO("component " << c << ": variance " << var << " vs " << s2 << ", 1 sd " << rel_sd_var * 100 << " %");
+    CHECK(std::abs(var / s2 - 1.0) < 4.0 * rel_sd_var);
+    CHECK(std::abs(mean) < 4.0 * sd_mean);
+  }
+}
+
+TEST_CASE("Dryden turbulence: Welch spectrum follows the Dryden forms", "[environment]") {
+  // Welch estimate (nfft = 2048, df = 4.9 mHz) compared with the analytic one-sided spectra over
+  // bands of the reduced frequency x = 2 pi f tau from 0.3 to 8, through the corner at x = 1.
+  // Tolerance per band: 4 standard deviations of the band-averaged estimate plus 1.5 % for bias.
+  // Standard deviation: each Hann/50 % overlap bin has relative variance 1.056 / K over K
+  // segments (Welch 1967; overlap correlation 0.167 for Hann, recalled from memory); adjacent Hann
+  // bins are correlated 4/9 and bins two apart 1/36 (|sum w^2 e^(-2 pi i k n / N)|^2 / (sum w^2)^2
+  // for the Hann window, computed by hand), so the mean of m bins has relative variance
+  // (1.056 / K)(m + 2 (m - 1) 4/9 + 2 (m - 2) / 36) / m^2. Bias: the Hann kernel smooths the
+  // spectrum over about 1/3 bin^2 (relative bias < 1 % here) and aliasing adds < 0.4 % at x = 8
+  // with fs = 10 Hz.
+  const auto& y = long_series();
+  const double fs = 1.0 / kDt;
+  const std::size_t nfft = 2048;
+  const double df = fs / static_cast<double>(nfft);
+  const double bands[] = {0.3, 0.5, 0.8, 1.25, 2.0, 3.2, 5.0, 8.0};
+  for (int c = 0; c < 3; ++c) {
+    std::size_t segments = 0;
+    const std::vector<double> p = welch(component(y, c), nfft, fs, segments);
+    const double tau = kTau[c];
+    for (std::size_t b = 0; b + 1 < sizeof(bands) / sizeof(bands[0]); ++b) {
+      const auto k0 = static_cast<std::size_t>(std::ceil(bands[b] / (2.0 * kPi * tau * df)));
+      const auto k1 = static_cast<std::size_t>(std::floor(bands[b + 1] / (2.0 * kPi * tau * df)));
+      double est = 0.0, ana = 0.0;
+      for (std::size_t k = k0; k <= k1; ++k) {
+        const double f = df * static_cast<double>(k);
+        est += p[k];
+        ana += c == 0 ? dryden_u(kSigma[c], tau, f) : dryden_v(kSigma[c], tau, f);
+      }
+      const double m = static_cast<double>(k1 - k0 + 1);
+      const double rel_var = 1.056 / segments * (m + 2.0 * (m - 1.0) * 4.0 / 9.0 + 2.0 * std::max(m - 2.0, 0.0) / 36.0) / (m * m);
+      const double tol = 4.0 * std::sqrt(rel_var) + 0.015;
+      INFO("component " << c << ", x in [" << bands[b] << ", " << bands[b + 1] << "], " << m << " bins: estimate / Dryden = "
+                        << est / ana << ", tolerance " << tol);
+      CHECK(std::abs(est / ana - 1.0) < tol);
+    }
+  }
+}
+
+TEST_CASE("Dryden turbulence: exact discretisation keeps the correlation at a coarse interval", "[environment]") {
+  // With dt = tau the samples must still have rho_u(k tau) = e^(-k) and rho_v(k tau) = (1 - k/2) e^(-k):
+  // 0.3679, 0.1353 and 0.1839, 0 (the lateral correlation crosses zero at two scale lengths).
+  // An explicit Euler step at this interval would be far off. Standard error of a lag
+  // correlation from N samples: about sqrt((1 + 2 sum rho^2) / N) < 1.6e-3 for N = 5e5.
+  const std::size_t n = 500000;
+  const DrydenTurbulence d({station(0.0, 20.0, 1.0, 1.0, 1.0, 20.0, 20.0, 20.0)}, 7, 1.0, static_cast<double>(n - 1));
+  std::vector<Eigen::Vector3d> y(n);
+  for (std::size_t k = 0; k < n; ++k) y[k] = d.velocity_uvw(0.0, static_cast<double>(k));
+  const auto u = component(y, 0), v = component(y, 1), w = component(y, 2);
+  const double tol = 7e-3;
+  CHECK(correlation(u, u, 1) == Approx(std::exp(-1.0)).margin(tol));
+  CHECK(correlation(u, u, 2) == Approx(std::exp(-2.0)).margin(tol));
+  CHECK(correlation(v, v, 1) == Approx(0.5 * std::exp(-1.0)).margin(tol));
+  CHECK(correlation(v, v, 2) == Approx(0.0).margin(tol));
+  CHECK(correlation(w, w, 1) == Approx(0.5 * std::exp(-1.0)).margin(tol));
+  CHECK(correlation(w, w, 3) == Approx(-0.5 * std::exp(-3.0)).margin(tol));
+  // The three components are independent.
+  CHECK(correlation(u, v, 0) == Approx(0.0).margin(tol));
+  CHECK(correlation(v, w, 0) == Approx(0.0).margin(tol));
+}
+
+TEST_CASE("Dryden turbulence: seeds, interpolation in time, range", "[environment]") {
+  const std::vector<DrydenStation> st = {station(0.0, 20.0, 2.0, 2.0, 1.0, 100.0, 100.0, 50.0)};
+  const double dt = 0.5, t_end = 100000.0;
+  const DrydenTurbulence a(st, 42, dt, t_end), b(st, 42, dt, t_end), c(st, 43, dt, t_end);
+  // Same seed: the same series, sample for sample; queries in any order give the same values.
+  for (double t : {0.0, 0.25, 1234.5, 99999.75, 50.0}) CHECK((a.velocity_uvw(0.0, t) - b.velocity_uvw(0.0, t)).norm() == 0.0);
+  const Eigen::Vector3d late = a.velocity_uvw(0.0, 777.7);
+  a.velocity_uvw(0.0, 3.0);
+  CHECK((a.velocity_uvw(0.0, 777.7) - late).norm() == 0.0);
+  // Another seed: a different, uncorrelated series. Standard error of the correlation of two
+  // independent series with rho = exp(-t/tau): sqrt(tau / T) = 0.016 here (tau = 5 s, T = 1e5 s).
+  std::vector<double> ua, uc;
+  for (double t = 0.0; t <= t_end; t += dt) {
+    ua.push_back(a.velocity_uvw(0.0, t)(0));
+    uc.push_back(c.velocity_uvw(0.0, t)(0));
+  }
+  CHECK(correlation(ua, uc, 0) == Approx(0.0).margin(4.0 * 0.016));
+  double diff = 0.0;
+  for (std::size_t k = 0; k < ua.size(); ++k) diff = std::max(diff, std::abs(ua[k] - uc[k]));
+  CHECK(diff > 1.0);
+  // Linear in time between samples; covers [0, duration]; outside throws.
+  const Eigen::Vector3d mid = a.velocity_uvw(0.0, 10.25), y0 = a.velocity_uvw(0.0, 10.0), y1 = a.velocity_uvw(0.0, 10.5);
+  CHECK((mid - 0.5 * (y0 + y1)).norm() < 1e-12);
+  CHECK(a.end_s() >= t_end);
+  CHECK_NOTHROW(a.velocity_uvw(0.0, t_end));
+  CHECK_THROWS_AS(a.velocity_uvw(0.0, -0.1), std::out_of_range);
+  CHECK_THROWS_AS(a.velocity_uvw(0.0, a.end_s() + 1.0), std::out_of_range);
+}
+
+TEST_CASE("Dryden turbulence: intensity between altitude stations", "[environment]") {
+  // Stations at 0 m (sigma 1 m/s) and 1000 m (sigma 3 m/s), independent series. At 500 m the
+  // variance must be the interpolated sigma^2 = 4 (m/s)^2, and the correlation with the series at
+  // 0 m must be 0.5 / sqrt(0.5) = 0.7071 (the variance-preserving blend of the header).
+  // Standard errors: variance 2.5 % with T = 1e5 s, tau = 5 s (u: sqrt(2 tau / T) = 1 %);
+  // correlation about (1 - 0.707^2) sqrt(2 tau / T) = 0.5 %.
+  const std::vector<DrydenStation> st = {station(0.0, 20.0, 1.0, 1.0, 1.0, 100.0, 100.0, 100.0),
+                                         station(1000.0, 20.0, 3.0, 3.0, 3.0, 100.0, 100.0, 100.0)};
+  const DrydenTurbulence d(st, 99, 0.5, 100000.0);
+  std::vector<double> low, mid;
+  double var_mid = 0.0;
+  for (double t = 0.0; t <= 100000.0; t += 0.5) {
+    low.push_back(d.velocity_uvw(0.0, t)(0));
+    mid.push_back(d.velocity_uvw(500.0, t)(0));
+    var_mid += mid.back() * mid.back();
+  }
+  var_mid /= static_cast<double>(mid.size());
+  CHECK(var_mid == Approx(4.0).epsilon(4.0 * 0.01));
+  CHECK(correlation(low, mid, 0) == Approx(std::sqrt(0.5)).margin(0.02));
+  // Held outside the table.
+  CHECK((d.velocity_uvw(-50.0, 123.0) - d.velocity_uvw(0.0, 123.0)).norm() == 0.0);
+  CHECK((d.velocity_uvw(5000.0, 123.0) - d.velocity_uvw(1000.0, 123.0)).norm() == 0.0);
+}
+
+TEST_CASE("Dryden turbulence: MIL-F-8785C low-altitude helper and frame", "[environment]") {
+  // MIL-F-8785C low-altitude model (recalled from memory): sigma_w = 0.1 W20 and L_w = h at every
+  // height; at 1000 ft it becomes isotropic, L_u = L_v = L_w = 1000 ft, sigma_u = sigma_v = sigma_w.
+  const double w20 = 15.4333;  // 30 kt, "moderate" [m/s]
+  const DrydenStation top = DrydenTurbulence::mil_f_8785c_low_altitude(304.8, w20, 25.0);
+  CHECK(top.sigma_w_m_s == Approx(0.1 * w20));
+  CHECK(top.sigma_u_m_s == Approx(top.sigma_w_m_s));
+  CHECK(top.sigma_v_m_s == Approx(top.sigma_w_m_s));
+  CHECK(top.scale_u_m == Approx(304.8));
+  CHECK(top.scale_w_m == Approx(304.8));
+  const DrydenStation low = DrydenTurbulence::mil_f_8785c_low_altitude(30.48, w20, 25.0);
+  CHECK(low.sigma_w_m_s == Approx(0.1 * w20));
+  CHECK(low.scale_w_m == Approx(30.48));
+  CHECK(low.sigma_u_m_s > low.sigma_w_m_s);  // near the ground the horizontal gusts are stronger
+  CHECK(low.scale_u_m > low.scale_w_m);
+  CHECK_THROWS(DrydenTurbulence::mil_f_8785c_low_altitude(500.0, w20, 25.0));
+  // (u, v, w) -> ENU: with the wind from the west (blowing east), u is east, v (left) is north.
+  const Eigen::Vector3d e = DrydenTurbulence::to_enu(Eigen::Vector3d(1.0, 2.0, 3.0), WindProfile::downwind_unit_enu(270.0));
+  CHECK(e.x() == Approx(1.0));
+  CHECK(e.y() == Approx(2.0));
+  CHECK(e.z() == Approx(3.0));
+}
