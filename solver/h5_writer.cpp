@@ -8,6 +8,7 @@
 
 #include <algorithm>
 #include <cerrno>
+#include <cstdint>
 #include <cstdlib>
 #include <cstring>
 #include <limits>
@@ -48,7 +49,10 @@ struct CommitState {
   haddr_t eoa = 0;            // end of allocated space, as the library sets it (bytes)
   haddr_t physical_end = 0;   // size of the file on disk (bytes)
   haddr_t committed_end = 0;  // end of the file as of the last commit (bytes)
+  haddr_t reserve = 0;        // end of allocation the superblock on disk claims while running
   std::map<haddr_t, HeldWrite> held;  // non-overlapping, keyed by address
+  std::vector<unsigned char> superblock;          // latest v2 superblock from the library
+  std::vector<unsigned char> superblock_on_disk;  // what commit() last wrote at address 0
 };
 
 // HDF5 hands us back the H5FD_t it got from open(); it sits at offset 0 of this
@@ -70,6 +74,73 @@ herr_t push_error(const char* func, hid_t minor, const std::string& what) {
 
 std::string errno_text(const char* op, const std::string& name) {
   return std::string(op) + " '" + name + "': " + std::strerror(errno);
+}
+
+// Bob Jenkins' lookup3 hash ("hashlittle", public domain, 2006), byte by byte: the checksum of
+// HDF5 metadata (HDF5 file format specification, section "Checksums").
+std::uint32_t lookup3(const unsigned char* k, std::size_t length) {
+  const auto rot = [](std::uint32_t x, int r) { return (x << r) | (x >> (32 - r)); };
+  std::uint32_t a, b, c;
+  a = b = c = 0xdeadbeefu + static_cast<std::uint32_t>(length);
+  const auto word = [k](std::size_t i, std::size_t n) {  // n little-endian bytes from k[i]
+    std::uint32_t w = 0;
+    for (std::size_t j = 0; j < n; ++j) w |= static_cast<std::uint32_t>(k[i + j]) << (8 * j);
+    return w;
+  };
+  std::size_t i = 0;
+  for (; length - i > 12; i += 12) {
+    a += word(i, 4);
+    b += word(i + 4, 4);
+    c += word(i + 8, 4);
+    a -= c; a ^= rot(c, 4);  c += b;
+    b -= a; b ^= rot(a, 6);  a += c;
+    c -= b; c ^= rot(b, 8);  b += a;
+    a -= c; a ^= rot(c, 16); c += b;
+    b -= a; b ^= rot(a, 19); a += c;
+    c -= b; c ^= rot(b, 4);  b += a;
+  }
+  const std::size_t rest = length - i;
+  if (rest == 0) return c;
+  a += word(i, std::min<std::size_t>(rest, 4));
+  if (rest > 4) b += word(i + 4, std::min<std::size_t>(rest - 4, 4));
+  if (rest > 8) c += word(i + 8, rest - 8);
+  c ^= b; c -= rot(b, 14);
+  a ^= c; a -= rot(c, 11);
+  b ^= a; b -= rot(a, 25);
+  c ^= b; c -= rot(b, 16);
+  a ^= c; a -= rot(c, 4);
+  b ^= a; b -= rot(a, 14);
+  c ^= b; c -= rot(b, 24);
+  return c;
+}
+
+// Superblock version 2 (HDF5 file format specification, "Version 2 Superblock"): signature (8),
+// version, offset size, length size, flags, base address, extension address, end-of-file
+// address (the end of allocation) at byte 28, root header address, checksum at byte 44.
+constexpr std::size_t kSuperblockSize = 48;
+constexpr std::size_t kSuperblockEoa = 28;
+constexpr std::size_t kSuperblockChecksum = 44;
+
+bool is_superblock_v2(const unsigned char* b, std::size_t size) {
+  static const unsigned char signature[8] = {0x89, 'H', 'D', 'F', '\r', '\n', 0x1a, '\n'};
+  return size == kSuperblockSize && std::memcmp(b, signature, 8) == 0 && b[8] == 2 &&
+         b[9] == 8 && std::memcmp(b + 12, "\0\0\0\0\0\0\0\0", 8) == 0;  // 8-byte addresses, base 0
+}
+
+std::vector<unsigned char> superblock_claiming(std::vector<unsigned char> image, haddr_t eoa) {
+  for (std::size_t i = 0; i < 8; ++i) image[kSuperblockEoa + i] = (eoa >> (8 * i)) & 0xff;
+  const std::uint32_t sum = lookup3(image.data(), kSuperblockChecksum);
+  for (std::size_t i = 0; i < 4; ++i) image[kSuperblockChecksum + i] = (sum >> (8 * i)) & 0xff;
+  return image;
+}
+
+// While running, the superblock on disk claims an end of allocation well past the real one
+// (the file is grown sparsely to match): a reader keeps the end it read at open, and must not
+// find newer metadata pointing past it. Doubling keeps the number of moves logarithmic.
+haddr_t reserve_for(haddr_t eoa) {
+  constexpr haddr_t kMinAhead = 16u << 20, kRound = 1u << 20;
+  const haddr_t want = std::max(2 * eoa, eoa + kMinAhead);
+  return (want + kRound - 1) / kRound * kRound;
 }
 
 bool pwrite_all(int fd, const unsigned char* data, std::size_t size, haddr_t addr) {
@@ -144,6 +215,10 @@ void overlay_held(const CommitState& s, haddr_t addr, std::size_t size, unsigned
       std::memcpy(out + (lo - addr), it->second.bytes.data() + (lo - it->first), hi - lo);
     }
   }
+  if (addr < s.superblock.size()) {  // the library reads its own superblock, not the claim
+    const std::size_t n = std::min<std::size_t>(size, s.superblock.size() - addr);
+    std::memcpy(out, s.superblock.data() + addr, n);
+  }
 }
 
 // Commit order of a held overwrite: pointees before pointers, lengths last.
@@ -176,25 +251,42 @@ CommitRank commit_rank(const HeldWrite& w) {
 bool barrier(const CommitState& s) { return !s.sync || ::fdatasync(s.fd) == 0; }
 
 // Make the file on disk the library's current view, one readable state after another.
-herr_t commit(CommitState& s) {
+// `closing`: the last commit; the superblock then claims the true end and the file is cut to it.
+herr_t commit(CommitState& s, bool closing) {
   static const char* const func = "hawser commit";
   if (!s.writable) return 0;
-  // 1. New bytes are already written; size the file to the end of allocation, so the new
-  //    superblock's end is never past the end of the file, and make them durable.
-  if (s.physical_end != s.eoa) {
-    if (::ftruncate(s.fd, static_cast<off_t>(s.eoa)) != 0) {
-      return push_error(func, H5E_WRITEERROR, errno_text("ftruncate", s.name));
-    }
-    s.physical_end = s.eoa;
+  const auto io_error = [&s](const char* op) {
+    return push_error(func, H5E_WRITEERROR, errno_text(op, s.name));
+  };
+
+  // End of allocation the superblock will claim, and the size the file must have for it.
+  haddr_t claimed = s.eoa;
+  std::vector<unsigned char> superblock;
+  if (!s.superblock.empty()) {
+    if (!closing && s.reserve < s.eoa) s.reserve = reserve_for(s.eoa);
+    if (!closing) claimed = s.reserve;
+    superblock = superblock_claiming(s.superblock, claimed);
   }
-  if (s.held.empty()) {
+  const bool new_superblock = !superblock.empty() && superblock != s.superblock_on_disk;
+  if (s.held.empty() && !new_superblock && s.physical_end == claimed) {
     s.committed_end = s.eoa;
     return 0;
   }
-  if (!barrier(s)) return push_error(func, H5E_WRITEERROR, errno_text("fdatasync", s.name));
 
-  // 2. Overwrites in dependency order; object headers (dataset lengths) last, and among them
-  //    the highest address first, so the first-created series grows last.
+  // 1. New bytes are on disk already; grow the file so that no superblock claims more than
+  //    it holds, and make them durable before anything points at them.
+  if (s.physical_end < claimed) {
+    if (::ftruncate(s.fd, static_cast<off_t>(claimed)) != 0) return io_error("ftruncate");
+    s.physical_end = claimed;
+  }
+  if (!barrier(s)) return io_error("fdatasync");
+
+  // 2. The superblock, then the held overwrites in dependency order, object headers (the
+  //    dataset lengths) last and among them the highest address first, so that the series
+  //    created first grows last.
+  if (new_superblock) {
+    if (!pwrite_all(s.fd, superblock.data(), superblock.size(), 0)) return io_error("pwrite");
+  }
   struct Step {
     CommitRank rank;
     haddr_t addr;
@@ -209,18 +301,23 @@ herr_t commit(CommitState& s) {
     return a.rank.step == 5 ? a.addr > b.addr : a.addr < b.addr;
   });
   for (std::size_t i = 0; i < steps.size(); ++i) {
-    const bool new_group = i > 0 && (steps[i].rank.step != steps[i - 1].rank.step ||
+    const bool new_group = i == 0 ? new_superblock
+                                  : (steps[i].rank.step != steps[i - 1].rank.step ||
                                      steps[i].rank.sub != steps[i - 1].rank.sub);
-    if (new_group && !barrier(s)) {
-      return push_error(func, H5E_WRITEERROR, errno_text("fdatasync", s.name));
-    }
+    if (new_group && !barrier(s)) return io_error("fdatasync");
     const auto& bytes = steps[i].write->bytes;
-    if (!pwrite_all(s.fd, bytes.data(), bytes.size(), steps[i].addr)) {
-      return push_error(func, H5E_WRITEERROR, errno_text("pwrite", s.name));
-    }
+    if (!pwrite_all(s.fd, bytes.data(), bytes.size(), steps[i].addr)) return io_error("pwrite");
   }
-  if (!barrier(s)) return push_error(func, H5E_WRITEERROR, errno_text("fdatasync", s.name));
+  if (!barrier(s)) return io_error("fdatasync");
+
+  // 3. Only now may the file shrink to what the superblock claims (when closing).
+  if (s.physical_end > claimed) {
+    if (::ftruncate(s.fd, static_cast<off_t>(claimed)) != 0) return io_error("ftruncate");
+    s.physical_end = claimed;
+    if (!barrier(s)) return io_error("fdatasync");
+  }
   s.held.clear();
+  if (!superblock.empty()) s.superblock_on_disk = std::move(superblock);
   s.committed_end = s.eoa;
   return 0;
 }
@@ -287,7 +384,7 @@ H5FD_t* cf_open(const char* name, unsigned flags, hid_t fapl, haddr_t /*maxaddr*
 
 herr_t cf_close(H5FD_t* file) {
   auto* cf = reinterpret_cast<CommitFile*>(file);
-  herr_t status = commit(*cf->state);
+  herr_t status = commit(*cf->state, true);
   if (::close(cf->state->fd) != 0) {
     status = push_error("hawser close", H5E_CANTCLOSEFILE, errno_text("close", cf->state->name));
   }
@@ -307,6 +404,23 @@ herr_t cf_query(const H5FD_t* /*file*/, unsigned long* flags) {
   // own write, typed, which the commit order needs.
   *flags = H5FD_FEAT_DATA_SIEVE | H5FD_FEAT_DEFAULT_VFD_COMPATIBLE;
   return 0;
+}
+
+// Metadata that commit() may overwrite later is placed so that it never straddles a page: a
+// killed process's write() stops only between pages (Linux copies a buffered write page by
+// page and checks for a fatal signal before each), so a one-page overwrite is all or nothing.
+constexpr haddr_t kPage = 4096;
+
+haddr_t cf_alloc(H5FD_t* file, H5FD_mem_t type, hid_t /*dxpl*/, hsize_t size) {
+  CommitState& s = state_of(file);
+  haddr_t addr = s.eoa;
+  const bool overwritable = type == H5FD_MEM_SUPER || type == H5FD_MEM_BTREE ||
+                            type == H5FD_MEM_LHEAP || type == H5FD_MEM_OHDR;
+  if (overwritable && size > 0 && size <= kPage && addr / kPage != (addr + size - 1) / kPage) {
+    addr = (addr / kPage + 1) * kPage;  // the gap stays unused and reads as zeros
+  }
+  s.eoa = addr + size;
+  return addr;
 }
 
 haddr_t cf_get_eoa(const H5FD_t* file, H5FD_mem_t /*type*/) { return state_of(file).eoa; }
@@ -347,6 +461,10 @@ herr_t cf_write(H5FD_t* file, H5FD_mem_t type, hid_t /*dxpl*/, haddr_t addr, siz
   CommitState& s = state_of(file);
   const auto* in = static_cast<const unsigned char*>(buf);
   try {
+    if (s.writable && addr == 0 && type == H5FD_MEM_SUPER && is_superblock_v2(in, size)) {
+      s.superblock.assign(in, in + size);  // commit() writes it, claiming the reserve
+      return 0;
+    }
     if (addr < s.committed_end) {
       const auto n = static_cast<std::size_t>(std::min<haddr_t>(size, s.committed_end - addr));
       hold(s, addr, in, n, type);
@@ -366,8 +484,8 @@ herr_t cf_write(H5FD_t* file, H5FD_mem_t type, hid_t /*dxpl*/, haddr_t addr, siz
   return 0;
 }
 
-herr_t cf_flush(H5FD_t* file, hid_t /*dxpl*/, hbool_t /*closing*/) {
-  return commit(state_of(file));
+herr_t cf_flush(H5FD_t* file, hid_t /*dxpl*/, hbool_t closing) {
+  return commit(state_of(file), closing);
 }
 
 // The file is sized by commit(), in its place in the order.
@@ -386,6 +504,7 @@ H5FD_class_t make_commit_class() {
   c.close = cf_close;
   c.cmp = cf_cmp;
   c.query = cf_query;
+  c.alloc = cf_alloc;
   c.get_eoa = cf_get_eoa;
   c.set_eoa = cf_set_eoa;
   c.get_eof = cf_get_eof;

@@ -394,7 +394,7 @@ TEST_CASE("modes: the demo tether's lowest east-west period agrees with a time-d
   CHECK(std::abs(rel(c.measured_period_s, c.modal_period_s)) < 0.001);
 }
 
-TEST_CASE("modes: benchmark, lowest 20 modes of a 2,000-element Earth tether", "[modes][bench]") {
+TEST_CASE("modes: benchmark, lowest 20 modes of a 2,000-element Earth tether", "[modes][benchmark]") {
   // Issue target: under 10 s of wall time on one core.
   const TetherModel model = build_model(load_scenario(kDemo, {"mesh.elements=2000"}));
   ModalOptions o;
