@@ -19,14 +19,18 @@ class LibraryError : public std::runtime_error {
 };
 
 /// The time integrator gave up (exit code 4); `time_s` is where it stopped.
+/// `component` is the state component with the largest weighted local error estimate
+/// when the integrator gave up (-1 if unknown): where the trouble is.
 class IntegratorFailure : public std::runtime_error {
  public:
-  IntegratorFailure(const std::string& what, double time_s)
-      : std::runtime_error(what), time_s_(time_s) {}
+  IntegratorFailure(const std::string& what, double time_s, long component = -1)
+      : std::runtime_error(what), time_s_(time_s), component_(component) {}
   double time_s() const { return time_s_; }
+  long component() const { return component_; }
 
  private:
   double time_s_;
+  long component_;
 };
 
 }  // namespace hawser

@@ -120,7 +120,11 @@ void ResultRecorder::finish(const RunSummary& s) {
   file_.set_attribute(g, "nonlinear_failures", s.stats.nonlinear_failures);
   file_.set_attribute(g, "root_evals", s.stats.root_evals);
   file_.set_attribute(g, "last_step_s", s.stats.last_step_s);
-  if (s.status == "failed") file_.set_attribute(g, "failure_message", s.message);
+  if (s.status == "failed") {
+    file_.set_attribute(g, "failure_message", s.message);
+    file_.set_attribute(g, "failure_time_s", s.end_time_s);
+    file_.set_attribute(g, "failure_node", static_cast<long long>(s.failure_node));
+  }
   file_.set_attribute("/", "status", s.status);
   file_.flush();
   file_.close();

@@ -42,6 +42,7 @@ struct SimulationSpec {
   double atol_velocity_m_s = 0.0;
   double max_step_s = 0.0;      // 0: none
   int max_order = 0;            // 0: the method's recommended order
+  long max_steps_per_output = 1000000;
   bool stop_on_rupture = true;
 };
 

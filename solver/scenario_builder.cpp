@@ -39,6 +39,7 @@ SimulationSpec build_simulation(const ScenarioValues& v) {
   sim.atol_velocity_m_s = v.quantity("simulation.atol_velocity");
   sim.max_step_s = v.quantity("simulation.max_step");
   sim.max_order = static_cast<int>(v.integer("simulation.max_order"));
+  sim.max_steps_per_output = static_cast<long>(v.integer("simulation.max_steps_per_output"));
   sim.stop_on_rupture = v.boolean("simulation.stop_on_rupture");
   if (sim.given) {
     sim.duration_s = v.quantity("simulation.duration");

@@ -35,6 +35,7 @@ struct RunSummary {
   double peak_north_south_m = 0.0, peak_north_south_time_s = 0.0;  // largest |u_z|
   std::size_t peak_north_south_node = 0;
   std::vector<RuptureEvent> ruptures;
+  long failure_node = -1;            // where the integrator's local error was largest (-1: n/a)
   std::size_t max_slack_elements = 0;
   double first_slack_time_s = -1.0;   // -1: never slack
 };

@@ -264,6 +264,27 @@ bool is_usage_error(int flag) {
 
 // ---- one SUNDIALS integrator behind a common face -------------------------------------
 
+/// argmax_i |local error_i * weight_i|, from the solver's own estimates (-1 if unavailable).
+template <class Fetch>
+long worst_component(SUNContext ctx, long n, Fetch fetch) {
+  try {
+    sd::Vector w = sd::make_vector(n, ctx), e = sd::make_vector(n, ctx);
+    if (!fetch(w.get(), e.get())) return -1;
+    long worst = -1;
+    double largest = -1.0;
+    for (long i = 0; i < n; ++i) {
+      const double x = std::abs(data(w.get())[i] * data(e.get())[i]);
+      if (x > largest) {
+        largest = x;
+        worst = i;
+      }
+    }
+    return worst;
+  } catch (...) {
+    return -1;  // a diagnostic only: never mask the failure being reported
+  }
+}
+
 class Stepper {
  public:
   virtual ~Stepper() = default;
@@ -272,6 +293,8 @@ class Stepper {
   virtual int evolve(double tout_s, N_Vector yout, double* t_reached_s) = 0;
   virtual void root_info(int* found) = 0;
   virtual void reinit(double t_s, N_Vector y) = 0;
+  /// Index of the component with the largest weighted local error estimate (-1: unknown).
+  virtual long largest_error_component(SUNContext ctx) = 0;
   virtual double internal_time() = 0;
   virtual SolverStats segment_stats() = 0;
   virtual std::string flag_name(int flag) = 0;
@@ -293,7 +316,7 @@ class CvodeStepper final : public Stepper {
  public:
   CvodeStepper(const IntegratorOptions& o, double t0, N_Vector y0, N_Vector atol,
                CallbackBridge& bridge, SUNContext ctx)
-      : bdf_(o.method == Method::bdf), roots_(bridge.system.num_roots()) {
+      : bdf_(o.method == Method::bdf), roots_(bridge.system.num_roots()), n_(N_VGetLength(y0)) {
     mem_.reset(sd::check_created(CVodeCreate(bdf_ ? CV_BDF : CV_ADAMS, ctx), "CVodeCreate"));
     void* m = mem_.get();
     sd::check_cvode(CVodeSetErrHandlerFn(m, error_callback, &bridge), "CVodeSetErrHandlerFn");
@@ -344,6 +367,11 @@ class CvodeStepper final : public Stepper {
   void reinit(double t_s, N_Vector y) override {
     sd::check_cvode(CVodeReInit(mem_.get(), t_s, y), "CVodeReInit");
   }
+  long largest_error_component(SUNContext ctx) override {
+    return worst_component(ctx, n_, [&](N_Vector w, N_Vector e) {
+      return CVodeGetErrWeights(mem_.get(), w) == CV_SUCCESS && CVodeGetEstLocalErrors(mem_.get(), e) == CV_SUCCESS;
+    });
+  }
   double internal_time() override {
     realtype t = 0;
     sd::check_cvode(CVodeGetCurrentTime(mem_.get(), &t), "CVodeGetCurrentTime");
@@ -373,6 +401,7 @@ class CvodeStepper final : public Stepper {
  private:
   bool bdf_;
   int roots_;
+  long n_;  // state size
   // Declared before mem_ so that the CVODE memory is freed first.
   sd::Matrix matrix_;
   sd::LinearSolver linear_;
@@ -384,7 +413,7 @@ class ArkodeStepper final : public Stepper {
  public:
   ArkodeStepper(const IntegratorOptions& o, double t0, N_Vector y0, N_Vector atol,
                 CallbackBridge& bridge, SUNContext ctx)
-      : roots_(bridge.system.num_roots()) {
+      : roots_(bridge.system.num_roots()), n_(N_VGetLength(y0)) {
     // fi == NULL: purely explicit ARK, i.e. an explicit Runge-Kutta method.
     mem_.reset(sd::check_created(ARKStepCreate(rhs_callback, nullptr, t0, y0, ctx),
                                  "ARKStepCreate"));
@@ -412,6 +441,12 @@ class ArkodeStepper final : public Stepper {
   }
   void root_info(int* found) override {
     sd::check_arkode(ARKStepGetRootInfo(mem_.get(), found), "ARKStepGetRootInfo");
+  }
+  long largest_error_component(SUNContext ctx) override {
+    return worst_component(ctx, n_, [&](N_Vector w, N_Vector e) {
+      return ARKStepGetErrWeights(mem_.get(), w) == ARK_SUCCESS &&
+             ARKStepGetEstLocalErrors(mem_.get(), e) == ARK_SUCCESS;
+    });
   }
   void reinit(double t_s, N_Vector y) override {
     sd::check_arkode(ARKStepReInit(mem_.get(), rhs_callback, nullptr, t_s, y), "ARKStepReInit");
@@ -446,6 +481,7 @@ class ArkodeStepper final : public Stepper {
 
  private:
   int roots_;
+  long n_;  // state size
   sd::ArkodeMemory mem_;
 };
 
@@ -534,7 +570,7 @@ struct TimeIntegrator::Impl {
     std::string story = what + " at t = " + format_time(t_s) + " s";
     if (!bridge.non_finite.empty()) story += "; first seen: " + bridge.non_finite;
     if (!bridge.stall.empty()) story += "; then: " + bridge.stall;
-    throw IntegratorFailure(story, t_s);
+    throw IntegratorFailure(story, t_s, stepper->largest_error_component(context.get()));
   }
 };
 
