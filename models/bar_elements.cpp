@@ -1,11 +1,14 @@
 #include "models/bar_elements.hpp"
 
+#include <cmath>
+#include <limits>
 #include <stdexcept>
 
 namespace hawser {
 
 BarElements::BarElements(std::vector<double> ea_n, std::vector<double> l0_m, std::vector<double> tau_s)
-    : ea_(std::move(ea_n)), l0_(std::move(l0_m)), c_(l0_.size()) {
+    : ea_(std::move(ea_n)), l0_(std::move(l0_m)), c_(l0_.size()),
+      cut_time_(l0_.size(), std::numeric_limits<double>::infinity()) {
   if (ea_.size() != l0_.size() || tau_s.size() != l0_.size())
     throw std::invalid_argument("BarElements: per-element arrays differ in length");
   for (std::size_t e = 0; e < l0_.size(); ++e) c_[e] = tau_s[e] * ea_[e] / l0_[e];
@@ -19,7 +22,7 @@ BarElements::Kinematics BarElements::kinematics(const TetherState& s, std::size_
   k.n = d / k.l;
   k.ldot = k.n.dot(k.w);
   k.tension = 0.0;
-  if (k.l > l0_[e]) {
+  if (k.l > l0_[e] && s.t < cut_time_[e]) {
     const double t = ea_[e] / l0_[e] * (k.l - l0_[e]) + c_[e] * k.ldot;
     if (t > 0.0) k.tension = t;
   }
@@ -59,9 +62,19 @@ void BarElements::add_jacobian(const TetherState& s, NodeJacobian& j) const {
   }
 }
 
+void BarElements::cut(std::size_t e, double t_s) { cut_time_.at(e) = t_s; }
+
+std::vector<double> BarElements::event_times() const {
+  std::vector<double> t;
+  for (double c : cut_time_)
+    if (std::isfinite(c)) t.push_back(c);
+  return t;
+}
+
 double BarElements::energy(const TetherState& s) const {
   double u = 0.0;
   for (std::size_t e = 0; e < l0_.size(); ++e) {
+    if (s.t >= cut_time_[e]) continue;
     const double l = (s.x.col(e + 1) - s.x.col(e)).norm();
     if (l > l0_[e]) u += 0.5 * ea_[e] / l0_[e] * (l - l0_[e]) * (l - l0_[e]);
   }

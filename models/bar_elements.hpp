@@ -5,7 +5,7 @@
 // ldot = n . (v_{e+1} - v_e). Tension (> 0 when stretched):
 //   T = k (l - L0) + c ldot   if l > L0 and that is > 0,   else 0 (slack carries nothing),
 //   k = E A / L0 [N/m],  c = tau k [N s/m] (tau: the material's retardation time).
-// Force on node e: +T n; on node e+1: -T n.
+// Force on node e: +T n; on node e+1: -T n. A cut element carries nothing from its cut time on.
 // Jacobian with K = dF_e/dd = k n n^T + (T / l)(I - n n^T) + (c / l) n w^T (I - n n^T),
 // w = v_{e+1} - v_e, and C = c n n^T: dF_e/dx_{e+1} = K, dF_e/dx_e = -K, dF_{e+1} = -dF_e.
 // (Chrono's cable and bar elements follow the same construction; the geometric stiffness
@@ -26,8 +26,15 @@ class BarElements : public ForceModel {
   double energy(const TetherState& s) const override;           // strain energy of taut elements
   double dissipated_power(const TetherState& s) const override;  // c ldot^2 while taut
 
-  /// Tension of every element at state s [N] (0 when slack).
+  /// Cuts element e at time t [s]: from then on it carries nothing (both parts fly free).
+  void cut(std::size_t e, double t_s);
+  double cut_time(std::size_t e) const { return cut_time_[e]; }
+  std::vector<double> event_times() const override;
+
+  /// Tension of every element at state s [N] (0 when slack or cut).
   void tensions(const TetherState& s, std::vector<double>& t) const;
+  /// Tension of element e alone [N].
+  double tension(const TetherState& s, std::size_t e) const { return kinematics(s, e).tension; }
   std::size_t size() const { return l0_.size(); }
   double l0(std::size_t e) const { return l0_[e]; }
   double ea(std::size_t e) const { return ea_[e]; }
@@ -40,6 +47,7 @@ class BarElements : public ForceModel {
   };
   Kinematics kinematics(const TetherState& s, std::size_t e) const;
   std::vector<double> ea_, l0_, c_;  // c = tau * EA / L0 [N s/m]
+  std::vector<double> cut_time_;     // [s]; +infinity: never cut
 };
 
 }  // namespace hawser

@@ -46,6 +46,17 @@ class NodeJacobian {
   std::vector<Eigen::Matrix3d> dx_[3], dv_[3];
 };
 
+/// A time history a model offers for the result file: its dataset path ("/environment/wind"),
+/// the shape of one row (time is the first axis, added by the recorder) and its units. If
+/// `summary_peak` is set, the recorder also writes the largest |value| seen under that
+/// name in /summary.
+struct OutputField {
+  std::string path;
+  std::vector<std::size_t> row_dims;
+  std::string units;
+  std::string summary_peak;
+};
+
 class ForceModel {
  public:
   virtual ~ForceModel() = default;
@@ -58,6 +69,14 @@ class ForceModel {
   virtual double energy(const TetherState&) const { return 0.0; }
   /// Power this model removes from the tether's mechanical energy [W] (>= 0 for dampers).
   virtual double dissipated_power(const TetherState&) const { return 0.0; }
+  /// Times at which this model's forces change abruptly (a gust's onset, a cut) [s]: the
+  /// integrator stops there so that no step straddles them.
+  virtual std::vector<double> event_times() const { return {}; }
+  /// The time histories this model offers; `nodes` are the nodes the run records.
+  virtual std::vector<OutputField> output_fields(const std::vector<std::size_t>& /*nodes*/) const { return {}; }
+  /// One row per field of output_fields(), in its order, at state s.
+  virtual void sample_outputs(const TetherState& /*s*/, const std::vector<std::size_t>& /*nodes*/,
+                              std::vector<std::vector<double>>& /*rows*/) const {}
 };
 
 }  // namespace hawser

@@ -1,12 +1,14 @@
 #include "solver/result_recorder.hpp"
 
+#include <cmath>
 #include <ctime>
+#include <stdexcept>
 
 namespace hawser {
 
 ResultRecorder::ResultRecorder(const std::string& path, const Scenario& sc, const TetherModel& model,
                                std::vector<std::size_t> nodes)
-    : file_(H5Writer::create(path)), nodes_(std::move(nodes)) {
+    : file_(H5Writer::create(path)), model_(model), nodes_(std::move(nodes)) {
   const std::size_t n = model.elements(), nn = model.nodes(), k = nodes_.size();
   file_.set_attribute("/", "format", "hawser-timehistory");
   file_.set_attribute("/", "format_version", 1);
@@ -45,6 +47,16 @@ ResultRecorder::ResultRecorder(const std::string& path, const Scenario& sc, cons
   angular_momentum_ = file_.create_series("/energy/angular_momentum_z", {}, "kg m^2/s");
   anchor_force_ = file_.create_series("/anchor/force", {3}, "N");
   angular_impulse_ = file_.create_series("/anchor/angular_impulse_z", {}, "N m s");
+  // Time histories the force models offer (wind, drag, tides, climbers, ...).
+  for (const ForceModel* m : model.forces()) {
+    ModelSeries ms{m, m->output_fields(nodes_), {}, {}};
+    for (const OutputField& f : ms.fields) {
+      std::vector<hsize_t> dims(f.row_dims.begin(), f.row_dims.end());
+      ms.ids.push_back(file_.create_series(f.path, dims, f.units));
+    }
+    ms.peaks.assign(ms.fields.size(), 0.0);
+    if (!ms.fields.empty()) model_series_.push_back(std::move(ms));
+  }
   file_.set_attribute("/energy", "meaning",
                       "rotating-frame kinetic energy, potential of gravity and centrifugal force, strain energy "
                       "of taut elements, energy dissipated by damping since t = 0; angular momentum of the free "
@@ -74,6 +86,20 @@ void ResultRecorder::record(double t, const Matrix3X& x, const Matrix3X& v, cons
   file_.append(angular_momentum_, &d.angular_momentum_z, 1);
   file_.append(anchor_force_, d.anchor_force_n.data(), 1);
   file_.append(angular_impulse_, &d.anchor_angular_impulse, 1);
+  if (model_series_.empty()) return;
+  const TetherState state{t, x, v, model_.mesh.node_mass};
+  for (ModelSeries& ms : model_series_) {
+    rows_.assign(ms.fields.size(), {});
+    ms.model->sample_outputs(state, nodes_, rows_);
+    for (std::size_t i = 0; i < ms.fields.size(); ++i) {
+      std::size_t expected = 1;
+      for (std::size_t dim : ms.fields[i].row_dims) expected *= dim;
+      if (rows_[i].size() != expected)
+        throw std::logic_error(ms.model->name() + ": output " + ms.fields[i].path + " has the wrong row size");
+      for (double value : rows_[i]) ms.peaks[i] = std::max(ms.peaks[i], std::abs(value));
+      file_.append(ms.ids[i], rows_[i].data(), 1);
+    }
+  }
 }
 
 void ResultRecorder::flush() { file_.flush(); }
@@ -100,6 +126,9 @@ void ResultRecorder::finish(const RunSummary& s) {
   file_.set_attribute(g, "max_slack_elements", static_cast<long long>(s.max_slack_elements));
   file_.set_attribute(g, "first_slack_time_s", s.first_slack_time_s);
   file_.set_attribute(g, "ruptures", static_cast<long long>(s.ruptures.size()));
+  for (const ModelSeries& ms : model_series_)
+    for (std::size_t i = 0; i < ms.fields.size(); ++i)
+      if (!ms.fields[i].summary_peak.empty()) file_.set_attribute(g, ms.fields[i].summary_peak, ms.peaks[i]);
   if (!s.ruptures.empty()) {
     std::vector<double> t, el, st;
     for (const auto& r : s.ruptures) {

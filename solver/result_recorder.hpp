@@ -23,8 +23,17 @@ class ResultRecorder : public OutputSink {
   void finish(const RunSummary& summary);
 
  private:
+  struct ModelSeries {
+    const ForceModel* model;
+    std::vector<OutputField> fields;
+    std::vector<H5Writer::SeriesId> ids;
+    std::vector<double> peaks;  // largest |value| per field
+  };
   H5Writer file_;
+  const TetherModel& model_;
   std::vector<std::size_t> nodes_;
+  std::vector<ModelSeries> model_series_;
+  std::vector<std::vector<double>> rows_;
   H5Writer::SeriesId time_, position_, velocity_, tension_, kinetic_, potential_, strain_, dissipated_,
       anchor_force_, angular_momentum_, angular_impulse_;
   std::vector<double> row_;

@@ -93,10 +93,19 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
     ++summary.outputs;
     return d;
   };
-  emit(0.0);
 
+  // Stop times: the caller's, every model's (gust onsets, cuts) and the strikes.
   std::vector<double> events = opt.event_times_s;
+  for (const ForceModel* m : sys.model().forces())
+    for (double te : m->event_times()) events.push_back(te);
+  for (const VelocityJump& j : sys.model().jumps) events.push_back(j.time_s);
   std::sort(events.begin(), events.end());
+  events.erase(std::unique(events.begin(), events.end()), events.end());
+  // Strikes at t = 0 act on the initial state.
+  for (const VelocityJump& j : sys.model().jumps)
+    if (j.time_s <= 0.0 && sys.layout().is_free(j.node))
+      for (int a = 0; a < 3; ++a) y[sys.layout().v(j.node, a)] += j.delta_v_m_s[a];
+  emit(0.0);
   std::size_t next_event = 0;
   while (next_event < events.size() && events[next_event] <= 0.0) ++next_event;
 
@@ -138,7 +147,10 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
           last_flush = now;
         }
       } else if (next_event < events.size() && reached >= events[next_event]) {
-        // A discontinuity of the forcing: restart from low order on the far side.
+        // A discontinuity of the forcing: apply any strike, restart from low order.
+        for (const VelocityJump& j : sys.model().jumps)
+          if (j.time_s == events[next_event] && sys.layout().is_free(j.node))
+            for (int a = 0; a < 3; ++a) y[sys.layout().v(j.node, a)] += j.delta_v_m_s[a];
         integ.restart(reached, y.data());
         while (next_event < events.size() && events[next_event] <= reached) ++next_event;
       }

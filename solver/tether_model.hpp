@@ -15,6 +15,13 @@ namespace hawser {
 
 struct Scenario;
 
+/// A sudden change of a node's velocity at a given time (a strike): momentum m dv is added.
+struct VelocityJump {
+  double time_s;
+  std::size_t node;
+  Eigen::Vector3d delta_v_m_s;
+};
+
 struct TetherModel {
   Mesh mesh;
   Equilibrium equilibrium;
@@ -25,6 +32,7 @@ struct TetherModel {
   double ultimate_strength_pa = 0.0;
   double spin_rate_rad_s = 0.0;                   // 0 on the test bench
   double reference_radius_m = 0.0;                // planet radius (0 on the bench): altitude = |x| - this
+  std::vector<VelocityJump> jumps;                // strikes, applied by the run driver
 
   std::size_t nodes() const { return mesh.nodes(); }
   std::size_t elements() const { return mesh.elements(); }

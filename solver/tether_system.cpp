@@ -54,13 +54,7 @@ void TetherSystem::rhs(double t, const double* y, double* ydot) {
   // moment at x_0, the force being along the element).
   const Eigen::Vector3d d0 = x_.col(1) - x_.col(0);
   const double l0 = d0.norm();
-  double tension0 = 0.0;
-  if (l0 > model_.bars->l0(0)) {
-    const double ldot = d0.dot(v_.col(1) - v_.col(0)) / l0;
-    // Same constitutive law as the bars (kept here to avoid a pass over all elements).
-    tension0 = std::max(0.0, model_.bars->ea(0) / model_.bars->l0(0) * (l0 - model_.bars->l0(0)) +
-                                 model_.bars->damping(0) * ldot);
-  }
+  const double tension0 = model_.bars->tension(s, 0);
   const Eigen::Vector3d pull_on_tether = -tension0 * d0 / l0;
   ydot[layout_.anchor_angular_impulse()] = x_(0, 0) * pull_on_tether.y() - x_(1, 0) * pull_on_tether.x();
 }
