@@ -21,6 +21,7 @@ struct TetherState {
   const Matrix3X& x;
   const Matrix3X& v;
   const Eigen::VectorXd& mass;  // node masses [kg]
+  const Matrix3X* a = nullptr;  // node accelerations [m/s^2], where known (outputs)
 };
 
 /// dF_i/dx_j and dF_i/dv_j for j = i-1, i, i+1 ([0], [1], [2]), per node i, in N/m and N s/m.

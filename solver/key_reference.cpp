@@ -36,7 +36,7 @@ std::vector<std::string> string_list(const YAML::Node& n) {
 
 KeyReference KeyReference::from_yaml(const std::string& text) {
   static const char* allowed_types[] = {"quantity", "integer", "boolean", "string", "choice",
-                                        "map", "list", "name_or_map", "vector3", "integer_list"};
+                                        "map", "list", "name_or_map", "vector3", "integer_list", "quantity_list"};
   KeyReference ref;
   const YAML::Node root = YAML::Load(text);
   for (const auto& entry : root["keys"]) {

@@ -87,7 +87,7 @@ void ResultRecorder::record(double t, const Matrix3X& x, const Matrix3X& v, cons
   file_.append(anchor_force_, d.anchor_force_n.data(), 1);
   file_.append(angular_impulse_, &d.anchor_angular_impulse, 1);
   if (model_series_.empty()) return;
-  const TetherState state{t, x, v, model_.mesh.node_mass};
+  const TetherState state{t, x, v, model_.mesh.node_mass, d.acceleration.cols() ? &d.acceleration : nullptr};
   for (ModelSeries& ms : model_series_) {
     rows_.assign(ms.fields.size(), {});
     ms.model->sample_outputs(state, nodes_, rows_);

@@ -7,6 +7,7 @@
 #include "models/material.hpp"
 #include "models/planet.hpp"
 #include "models/taper_design.hpp"
+#include "solver/environment_spec.hpp"  // environment and events (issue 5)
 #include "solver/scenario_values.hpp"
 
 namespace hawser {
@@ -86,6 +87,7 @@ struct Scenario {
   SimulationSpec simulation;
   InitialSpec initial;
   OutputSpec output;
+  EnvironmentSpec environment;  // air, wind, tides, cuts, strikes (solver/environment_builder.hpp)
   ScenarioValues values;     // everything as validated, with locations
 };
 

@@ -2,6 +2,7 @@
 // checks that need more than one key (a design that cannot stand).
 #include <sstream>
 
+#include "solver/environment_builder.hpp"
 #include "solver/errors.hpp"
 #include "solver/scenario.hpp"
 #include "solver/scenario_reader.hpp"
@@ -93,6 +94,7 @@ void build_initial_and_output(const ScenarioValues& v, double length_m, int elem
       s.output.nodes.push_back(node);
     }
   }
+  s.environment = read_environment(v, s, length_m, problems);  // environment.*, events.* (issue 5)
 }
 
 Scenario build(const ReadScenario& read, const std::string& file) {

@@ -133,12 +133,14 @@ class Validator {
       }
       return;
     }
-    if (spec.type == "vector3" || spec.type == "integer_list") {
-      if (!node.IsSequence() || (spec.type == "vector3" && node.size() != 3))
-        return problem(w, display, spec.type == "vector3" ? "expected a list of three values [x, y, z]" : "expected a list of whole numbers [1, 5, 9]");
+    if (spec.type == "vector3" || spec.type == "integer_list" || spec.type == "quantity_list") {
+      if (!node.IsSequence() || (spec.type == "vector3" && node.size() != 3) || node.size() == 0)
+        return problem(w, display, spec.type == "vector3"         ? "expected a list of three values [x, y, z]"
+                                   : spec.type == "quantity_list" ? "expected a list of values [20 t, 15 t]"
+                                                                  : "expected a list of whole numbers [1, 5, 9]");
       for (const auto& item : node) {
         if (!item.IsScalar()) return problem(w, display, "expected plain values in the list");
-        if (spec.type == "vector3") {
+        if (spec.type != "integer_list") {
           double x = 0;
           std::string why;
           if (!units.to_si(item.Scalar(), spec.dimension, x, why)) return problem(w, display, why);

@@ -32,6 +32,7 @@ RunOptions run_options(const SimulationSpec& sim, const StateLayout& layout) {
   // error control (as CVODES does for its quadratures), or they would set the step size.
   o.integrator.atol[layout.dissipated_energy()] = 1e30;
   o.integrator.atol[layout.anchor_angular_impulse()] = 1e30;
+  o.integrator.atol[layout.drive_work()] = 1e30;
   o.stop_on_rupture = sim.stop_on_rupture;
   return o;
 }
@@ -85,9 +86,16 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
   Progress progress(opt.duration_s, opt.progress);
   std::vector<double> y = y0;
   Matrix3X x, v;
+  std::vector<double> ydot(y.size());
   auto emit = [&](double t) {
-    const TetherDiagnostics d = sys.diagnose(t, y.data());
+    TetherDiagnostics d = sys.diagnose(t, y.data());
     sys.node_state(t, y.data(), x, v);
+    // Accelerations, for outputs that need them (a climber's drive force).
+    sys.rhs(t, y.data(), ydot.data());
+    d.acceleration = Matrix3X::Zero(3, x.cols());
+    const StateLayout& lay = sys.layout();
+    for (std::size_t k = lay.first_free(); k <= lay.last_free(); ++k)
+      for (int a = 0; a < 3; ++a) d.acceleration(a, k) = ydot[lay.v(k, a)];
     sink.record(t, x, v, d);
     keeper.observe(t, x, d);
     ++summary.outputs;

@@ -9,6 +9,7 @@
 // then the quadratures, integrated alongside (nothing depends on them):
 //   y[6 F + 0]  energy dissipated so far [J]
 //   y[6 F + 1]  angular impulse of the anchor about the spin axis [N m s]
+//   y[6 F + 2]  work done by the climbers' drives [J]
 // The displacement, not the position, is the state so that the error control acts on the
 // motion (|u| of metres) rather than on positions of 1e8 m.
 #include <cstddef>
@@ -18,7 +19,7 @@ namespace hawser {
 class StateLayout {
  public:
   static constexpr std::size_t kPerNode = 6;
-  static constexpr std::size_t kQuadratures = 2;
+  static constexpr std::size_t kQuadratures = 3;
   static constexpr long kHalfBandwidth = 11;
 
   StateLayout(std::size_t first_free, std::size_t last_free) : first_(first_free), last_(last_free) {}
@@ -33,6 +34,7 @@ class StateLayout {
   std::size_t v(std::size_t node, int a) const { return kPerNode * (node - first_) + 3 + a; }
   std::size_t dissipated_energy() const { return kPerNode * free_nodes(); }
   std::size_t anchor_angular_impulse() const { return kPerNode * free_nodes() + 1; }
+  std::size_t drive_work() const { return kPerNode * free_nodes() + 2; }
 
  private:
   std::size_t first_, last_;

@@ -4,6 +4,9 @@
 #include "models/rotating_frame.hpp"
 #include "models/taper_design.hpp"
 #include "models/uniform_gravity.hpp"
+#include "solver/climber_builder.hpp"
+#include "solver/initial_state.hpp"
+#include "solver/environment_builder.hpp"
 #include "solver/scenario.hpp"
 
 namespace hawser {
@@ -11,6 +14,7 @@ namespace hawser {
 std::vector<const ForceModel*> TetherModel::forces() const {
   std::vector<const ForceModel*> out{bars.get()};
   for (const auto& b : body) out.push_back(b.get());
+  if (climbers) out.push_back(climbers.get());
   return out;
 }
 
@@ -32,14 +36,32 @@ TetherModel build_model(const Scenario& sc) {
   m.anchor = std::make_unique<FixedPoint>();
   std::vector<const ForceModel*> body;
   for (const auto& b : m.body) body.push_back(b.get());
-  m.equilibrium = solve_equilibrium(m.mesh, sc.material.youngs_modulus_pa, sc.field.pretension_n, body);
+  // Climbers parked at their start points load the starting equilibrium (except sudden
+  // loads); positions are first taken on the reference geometry, where the fraction of an
+  // element is the same as in material coordinates.
+  const std::vector<double> reference = reference_distance(m.mesh);
+  std::vector<const ForceModel*> with_parked = body;
+  std::unique_ptr<ClimberLoad> parked;
+  const std::vector<Climber> on_reference = read_climbers(sc, reference, reference);
+  if (!on_reference.empty()) {
+    parked = std::make_unique<ClimberLoad>(on_reference, reference, body, m.mesh.position);
+    parked->set_parked(true);
+    with_parked.push_back(parked.get());
+  }
+  m.equilibrium = solve_equilibrium(m.mesh, sc.material.youngs_modulus_pa, sc.field.pretension_n, with_parked);
   std::vector<double> ea, tau;
   for (std::size_t e = 0; e < m.mesh.elements(); ++e) {
     ea.push_back(sc.material.youngs_modulus_pa * m.mesh.element_area[e]);
     tau.push_back(sc.material.damping_time_s);
   }
   m.bars = std::make_unique<BarElements>(ea, m.equilibrium.l0_m, tau);
+  add_environment(sc, m);  // drag, tides, cuts, strikes (solver/environment_builder.hpp)
   m.ultimate_strength_pa = sc.material.ultimate_strength_pa;
+  if (!on_reference.empty()) {
+    m.climbers = std::make_unique<ClimberLoad>(read_climbers(sc, reference, m.equilibrium.s0_m), m.equilibrium.s0_m,
+                                               body, m.mesh.position);
+    m.climbers->set_bars(m.bars.get());
+  }
   return m;
 }
 

@@ -7,6 +7,7 @@
 
 #include "models/anchor_motion.hpp"
 #include "models/bar_elements.hpp"
+#include "models/climber_load.hpp"
 #include "models/force_model.hpp"
 #include "solver/equilibrium.hpp"
 #include "solver/mesh.hpp"
@@ -33,10 +34,11 @@ struct TetherModel {
   double spin_rate_rad_s = 0.0;                   // 0 on the test bench
   double reference_radius_m = 0.0;                // planet radius (0 on the bench): altitude = |x| - this
   std::vector<VelocityJump> jumps;                // strikes, applied by the run driver
+  std::unique_ptr<ClimberLoad> climbers;          // null when the scenario has none
 
   std::size_t nodes() const { return mesh.nodes(); }
   std::size_t elements() const { return mesh.elements(); }
-  /// All force models, bars first.
+  /// All force models: bars first, climbers last.
   std::vector<const ForceModel*> forces() const;
 };
 

@@ -13,6 +13,9 @@ TetherSystem::TetherSystem(const TetherModel& model)
       f_(3, model.nodes()),
       jac_(model.nodes()),
       newton_jac_(model.nodes()),
+      diag_(model.mesh.node_mass),
+      off_(Eigen::VectorXd::Zero(model.nodes())),
+      thomas_c_(model.nodes()),
       dinv_(model.nodes()),
       lower_(model.nodes()),
       upper_(model.nodes()),
@@ -40,12 +43,18 @@ void TetherSystem::rhs(double t, const double* y, double* ydot) {
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   f_.setZero();
   for (const ForceModel* m : model_.forces()) m->add_forces(s, f_);
-  for (std::size_t k = layout_.first_free(); k <= layout_.last_free(); ++k) {
-    const double inv_m = 1.0 / model_.mesh.node_mass[k];
+  assemble_mass(t);
+  solve_mass(f_);  // f_ now holds the accelerations
+  for (std::size_t k = layout_.first_free(); k <= layout_.last_free(); ++k)
     for (int a = 0; a < 3; ++a) {
       ydot[layout_.u(k, a)] = v_(a, k);
-      ydot[layout_.v(k, a)] = f_(a, k) * inv_m;
+      ydot[layout_.v(k, a)] = f_(a, k);
     }
+  if (model_.climbers) {
+    const TetherState with_a{t, x_, v_, model_.mesh.node_mass, &f_};
+    ydot[layout_.drive_work()] = model_.climbers->drive_power(with_a);
+  } else {
+    ydot[layout_.drive_work()] = 0.0;
   }
   double dissipation = 0.0;
   for (const ForceModel* m : model_.forces()) dissipation += m->dissipated_power(s);
@@ -65,8 +74,12 @@ void TetherSystem::jacobian(double t, const double* y, const double*, const Band
   jac_.set_zero();
   for (const ForceModel* m : model_.forces()) m->add_jacobian(s, jac_);
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  // With climbers the exact J = M^-1 dF/dy reaches beyond the band; this band form divides
+  // by the diagonal of M only. The integrator uses the exact structured Newton solver
+  // (newton_*) instead; the band form serves generic solvers and checks.
+  assemble_mass(t);
   for (std::size_t k = first; k <= last; ++k) {
-    const double inv_m = 1.0 / model_.mesh.node_mass[k];
+    const double inv_m = 1.0 / diag_[k];
     for (int a = 0; a < 3; ++a) j(layout_.u(k, a), layout_.v(k, a)) = 1.0;
     const std::size_t lo = std::max(first, k - 1), hi = std::min(last, k + 1);
     for (std::size_t q = lo; q <= hi; ++q) {
@@ -112,6 +125,11 @@ TetherDiagnostics TetherSystem::diagnose(double t, const double* y) const {
   }
   d.dissipated_j = y[layout_.dissipated_energy()];
   d.anchor_angular_impulse = y[layout_.anchor_angular_impulse()];
+  d.drive_work_j = y[layout_.drive_work()];
+  if (model_.climbers) {
+    d.climber_j = model_.climbers->climber_energy(s);
+    d.angular_momentum_z += model_.climbers->climber_angular_momentum(s, w);
+  }
   const Eigen::Vector3d d0 = x.col(1) - x.col(0);
   d.anchor_force_n = d.tension_n[0] * d0 / d0.norm();
   for (std::size_t e = 0; e < d.tension_n.size(); ++e) {
@@ -130,6 +148,7 @@ TetherDiagnostics TetherSystem::diagnose(double t, const double* y) const {
 namespace hawser {
 
 void TetherSystem::newton_jacobian(double t, const double* y) {
+  newton_t_ = t;
   node_state(t, y, x_, v_);
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   newton_jac_.set_zero();
@@ -140,9 +159,11 @@ void TetherSystem::newton_factor(double gamma) {
   newton_gamma_ = gamma;
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
   const double g2 = gamma * gamma;
+  assemble_mass(newton_t_);
   auto block = [&](std::size_t k, std::size_t j) -> Eigen::Matrix3d {
     Eigen::Matrix3d a = -gamma * newton_jac_.dv(k, j) - g2 * newton_jac_.dx(k, j);
-    if (k == j) a.diagonal().array() += model_.mesh.node_mass[k];
+    const double m = k == j ? diag_[k] : off_[std::min(k, j)];
+    a.diagonal().array() += m;
     return a;
   };
   // D_first = A_ff; L_k = A_{k,k-1} D_{k-1}^-1; D_k = A_kk - L_k A_{k-1,k}.
@@ -161,11 +182,11 @@ void TetherSystem::newton_solve(double* b) const {
   // Per free node k the state holds u_k then v_k (solver/state_layout.hpp): 6 values at 6 (k - first).
   auto ru = [&](std::size_t k) { return Vec3(b + StateLayout::kPerNode * (k - first)); };
   auto rv = [&](std::size_t k) { return Vec3(b + StateLayout::kPerNode * (k - first) + 3); };
-  // Right-hand side of the reduced system: m_k r_v,k + gamma sum_j dF_k/dx_j r_u,j.
+  // Right-hand side of the reduced system: (M r_v)_k + gamma sum_j dF_k/dx_j r_u,j.
   for (std::size_t k = first; k <= last; ++k) {
-    Eigen::Vector3d r = model_.mesh.node_mass[k] * rv(k) + gamma * (newton_jac_.dx(k, k) * ru(k));
-    if (k > first) r.noalias() += gamma * (newton_jac_.dx(k, k - 1) * ru(k - 1));
-    if (k < last) r.noalias() += gamma * (newton_jac_.dx(k, k + 1) * ru(k + 1));
+    Eigen::Vector3d r = diag_[k] * rv(k) + gamma * (newton_jac_.dx(k, k) * ru(k));
+    if (k > first) r.noalias() += off_[k - 1] * rv(k - 1) + gamma * (newton_jac_.dx(k, k - 1) * ru(k - 1));
+    if (k < last) r.noalias() += off_[k] * rv(k + 1) + gamma * (newton_jac_.dx(k, k + 1) * ru(k + 1));
     work_[k] = r;
   }
   // Forward elimination, then back substitution.
@@ -176,6 +197,56 @@ void TetherSystem::newton_solve(double* b) const {
   for (std::size_t k = first; k <= last; ++k) {
     ru(k) += gamma * work_[k];
     rv(k) = work_[k];
+  }
+}
+
+}  // namespace hawser
+
+namespace hawser {
+
+void TetherSystem::assemble_mass(double t) {
+  for (std::size_t k : touched_) {
+    diag_[k] = model_.mesh.node_mass[k];
+    off_[k] = 0.0;
+  }
+  touched_.clear();
+  if (!model_.climbers) return;
+  for (const Attachment& at : model_.climbers->attachments(t)) {
+    const std::size_t e = at.element;
+    const double w0 = 1.0 - at.xi, w1 = at.xi;
+    diag_[e] += at.mass_kg * w0 * w0;
+    diag_[e + 1] += at.mass_kg * w1 * w1;
+    off_[e] += at.mass_kg * w0 * w1;
+    touched_.push_back(e);
+    touched_.push_back(e + 1);
+  }
+}
+
+void TetherSystem::solve_mass(Matrix3X& f) const {
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  // Prescribed nodes do not move with the forces: their accelerations are the prescribed
+  // ones (zero for fixed points), and their mass couplings drop out of the free equations.
+  for (std::size_t k = 0; k < f.cols(); ++k)
+    if (!layout_.is_free(k)) f.col(k).setZero();
+  std::size_t k = first;
+  while (k <= last) {
+    // A run k..q of free nodes joined by non-zero off-diagonals.
+    std::size_t q = k;
+    while (q < last && off_[q] != 0.0) ++q;
+    if (q == k) {
+      f.col(k) /= diag_[k];
+    } else {
+      // Thomas algorithm on the run, the same matrix for the three axes.
+      thomas_c_[k] = off_[k] / diag_[k];
+      f.col(k) /= diag_[k];
+      for (std::size_t i = k + 1; i <= q; ++i) {
+        const double denom = diag_[i] - off_[i - 1] * thomas_c_[i - 1];
+        if (i < q) thomas_c_[i] = off_[i] / denom;
+        f.col(i) = (f.col(i) - off_[i - 1] * f.col(i - 1)) / denom;
+      }
+      for (std::size_t i = q; i-- > k;) f.col(i) -= thomas_c_[i] * f.col(i + 1);
+    }
+    k = q + 1;
   }
 }
 

@@ -16,11 +16,14 @@ struct TetherDiagnostics {
   std::vector<double> tension_n;        // (N) [N]
   double kinetic_j = 0, potential_j = 0, strain_j = 0, dissipated_j = 0;  // [J]
   Eigen::Vector3d anchor_force_n = Eigen::Vector3d::Zero();  // pull of the tether on the anchor [N]
-  double angular_momentum_z = 0;        // of the free nodes about the spin axis, inertial [kg m^2/s]
+  double angular_momentum_z = 0;        // of the free nodes and climbers about the spin axis, inertial [kg m^2/s]
   double anchor_angular_impulse = 0;    // integral of the anchor's torque on the tether [N m s]
+  double climber_j = 0;                 // climbers' kinetic + potential energy [J]
+  double drive_work_j = 0;              // work done by the climbers' drives since t = 0 [J]
   double max_stress_ratio = 0;          // max over elements of stress / ultimate strength
   std::size_t max_stress_element = 0;
   std::size_t slack_elements = 0;
+  Matrix3X acceleration;                // all nodes [m/s^2], filled by the run driver (outputs)
 };
 
 class TetherSystem : public OdeSystem {
@@ -56,10 +59,21 @@ class TetherSystem : public OdeSystem {
  private:
   const TetherModel& model_;
   StateLayout layout_;
+  /// The mass matrix per axis (the same for x, y, z): lumped node masses plus each climber's
+  /// m w w^T, so tridiagonal: diag_[k], off_[k] between k and k+1. Rebuilt for time t.
+  void assemble_mass(double t);
+  /// Solves M a = f for the free nodes, prescribed nodes having zero acceleration: a 2x2
+  /// solve per lone climber (the Sherman-Morrison formula), the tridiagonal (Thomas)
+  /// algorithm on runs of nodes coupled by several climbers; a = f / m elsewhere.
+  void solve_mass(Matrix3X& f_to_a) const;
+  Eigen::VectorXd diag_, off_;
+  std::vector<std::size_t> touched_;  // nodes whose mass entries differ from the lumped ones
+  mutable Eigen::VectorXd thomas_c_;
   Matrix3X x_, v_, f_;    // work arrays (all nodes)
   NodeJacobian jac_;
   NodeJacobian newton_jac_;                 // Jacobian of the last newton_jacobian()
   double newton_gamma_ = 0.0;
+  double newton_t_ = 0.0;                   // time of the last newton_jacobian()
   std::vector<Eigen::Matrix3d> dinv_, lower_, upper_;  // per free node: D^-1, L, A_{k,k+1}
   mutable std::vector<Eigen::Vector3d> work_;
 };

@@ -1,0 +1,226 @@
+#include "models/climber_load.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+namespace hawser {
+
+ClimberLoad::ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_nodes,
+                         std::vector<const ForceModel*> point_models, const Matrix3X& reference_position)
+    : climbers_(std::move(climbers)),
+      s_nodes_(std::move(s_nodes)),
+      point_models_(std::move(point_models)),
+      reference_(reference_position) {}
+
+std::vector<Attachment> ClimberLoad::attachments(double t) const {
+  std::vector<Attachment> out;
+  const std::size_t n_el = s_nodes_.size() - 1;
+  for (std::size_t c = 0; c < climbers_.size(); ++c) {
+    const Climber& cl = climbers_[c];
+    ClimberProfile::Kinematics k{cl.profile.from(), 0.0, 0.0};
+    double mass = cl.mass_kg;
+    if (parked_) {
+      if (cl.sudden) continue;
+    } else {
+      if (cl.sudden && t < cl.profile.start_time()) continue;
+      if (t >= cl.profile.end_time()) {
+        if (cl.at_end == ClimberEnd::leave) continue;
+        if (cl.at_end == ClimberEnd::drop_payload) mass = cl.end_mass_kg;
+      }
+      k = cl.profile.at(t);
+    }
+    // The element entered: going down, a climber exactly on node k is on element k-1.
+    const bool down = k.speed_m_s < 0.0 || (k.speed_m_s == 0.0 && cl.profile.direction() < 0 && !parked_);
+    auto it = down ? std::lower_bound(s_nodes_.begin(), s_nodes_.end(), k.s_m)
+                   : std::upper_bound(s_nodes_.begin(), s_nodes_.end(), k.s_m);
+    long e = static_cast<long>(it - s_nodes_.begin()) - 1;
+    e = std::min<long>(std::max<long>(e, 0), static_cast<long>(n_el) - 1);
+    const double len = s_nodes_[e + 1] - s_nodes_[e];
+    Attachment a{c, static_cast<std::size_t>(e), (k.s_m - s_nodes_[e]) / len, k.speed_m_s / len, k.accel_m_s2 / len,
+                 mass};
+    a.xi = std::min(1.0, std::max(0.0, a.xi));
+    out.push_back(a);
+  }
+  return out;
+}
+
+ClimberLoad::PointState ClimberLoad::point(const TetherState& s, const Attachment& at) const {
+  const std::size_t e = at.element;
+  const Eigen::Vector3d d = s.x.col(e + 1) - s.x.col(e);
+  return {(1 - at.xi) * s.x.col(e) + at.xi * s.x.col(e + 1),
+          (1 - at.xi) * s.v.col(e) + at.xi * s.v.col(e + 1) + at.xi_dot * d};
+}
+
+Eigen::Vector3d ClimberLoad::point_force(double t, const PointState& p, double mass, Eigen::Matrix3d* dr,
+                                         Eigen::Matrix3d* dv) const {
+  Matrix3X x(3, 1), v(3, 1), f = Matrix3X::Zero(3, 1);
+  x.col(0) = p.r;
+  v.col(0) = p.v;
+  Eigen::VectorXd m(1);
+  m[0] = mass;
+  const TetherState one{t, x, v, m};
+  for (const ForceModel* pm : point_models_) pm->add_forces(one, f);
+  if (dr || dv) {
+    NodeJacobian j(1);
+    for (const ForceModel* pm : point_models_) pm->add_jacobian(one, j);
+    if (dr) *dr = j.dx(0, 0);
+    if (dv) *dv = j.dv(0, 0);
+  }
+  return f.col(0);
+}
+
+void ClimberLoad::add_forces(const TetherState& s, Matrix3X& f) const {
+  for (const Attachment& at : attachments(s.t)) {
+    const std::size_t e = at.element;
+    const PointState p = point(s, at);
+    const Eigen::Vector3d a_rel =
+        2 * at.xi_dot * (s.v.col(e + 1) - s.v.col(e)) + at.xi_ddot * (s.x.col(e + 1) - s.x.col(e));
+    const Eigen::Vector3d g = point_force(s.t, p, at.mass_kg, nullptr, nullptr) - at.mass_kg * a_rel;
+    f.col(e) += (1 - at.xi) * g;
+    f.col(e + 1) += at.xi * g;
+  }
+}
+
+void ClimberLoad::add_jacobian(const TetherState& s, NodeJacobian& j) const {
+  const Eigen::Matrix3d I = Eigen::Matrix3d::Identity();
+  for (const Attachment& at : attachments(s.t)) {
+    const std::size_t e = at.element;
+    const PointState p = point(s, at);
+    Eigen::Matrix3d fr, fv;
+    point_force(s.t, p, at.mass_kg, &fr, &fv);
+    const double xi = at.xi, xd = at.xi_dot, xdd = at.xi_ddot, m = at.mass_kg;
+    // dG/d(node) for G = F_c(r_c, v_c) - m a_rel.
+    const Eigen::Matrix3d gx_e = (1 - xi) * fr - xd * fv + m * xdd * I;
+    const Eigen::Matrix3d gx_f = xi * fr + xd * fv - m * xdd * I;
+    const Eigen::Matrix3d gv_e = (1 - xi) * fv + 2 * m * xd * I;
+    const Eigen::Matrix3d gv_f = xi * fv - 2 * m * xd * I;
+    const double w[2] = {1 - xi, xi};
+    for (int r = 0; r < 2; ++r) {
+      j.dx(e + r, e) += w[r] * gx_e;
+      j.dx(e + r, e + 1) += w[r] * gx_f;
+      j.dv(e + r, e) += w[r] * gv_e;
+      j.dv(e + r, e + 1) += w[r] * gv_f;
+    }
+  }
+}
+
+std::vector<double> ClimberLoad::event_times() const {
+  std::vector<double> t;
+  for (const Climber& c : climbers_) {
+    for (double ts : c.profile.segment_times()) t.push_back(ts);
+    for (double tc : c.profile.crossing_times(s_nodes_)) t.push_back(tc);
+  }
+  std::sort(t.begin(), t.end());
+  t.erase(std::unique(t.begin(), t.end()), t.end());
+  return t;
+}
+
+Eigen::Vector3d ClimberLoad::reaction(const TetherState& s, const Attachment& at) const {
+  if (s.a == nullptr) return Eigen::Vector3d::Constant(std::nan(""));
+  const std::size_t e = at.element;
+  const Matrix3X& a = *s.a;
+  const Eigen::Vector3d a_rel = 2 * at.xi_dot * (s.v.col(e + 1) - s.v.col(e)) + at.xi_ddot * (s.x.col(e + 1) - s.x.col(e));
+  const Eigen::Vector3d a_c = (1 - at.xi) * a.col(e) + at.xi * a.col(e + 1) + a_rel;
+  return at.mass_kg * a_c - point_force(s.t, point(s, at), at.mass_kg, nullptr, nullptr);
+}
+
+double ClimberLoad::drive_power(const TetherState& s) const {
+  double p = 0.0;
+  for (const Attachment& at : attachments(s.t))
+    p += reaction(s, at).dot(at.xi_dot * (s.x.col(at.element + 1) - s.x.col(at.element)));
+  return p;
+}
+
+double ClimberLoad::climber_energy(const TetherState& s) const {
+  double e = 0.0;
+  for (const Attachment& at : attachments(s.t)) {
+    const PointState p = point(s, at);
+    Matrix3X x(3, 1), v = Matrix3X::Zero(3, 1);
+    x.col(0) = p.r;
+    Eigen::VectorXd m(1);
+    m[0] = at.mass_kg;
+    const TetherState one{s.t, x, v, m};
+    for (const ForceModel* pm : point_models_) e += pm->energy(one);
+    e += 0.5 * at.mass_kg * p.v.squaredNorm();
+  }
+  return e;
+}
+
+double ClimberLoad::climber_angular_momentum(const TetherState& s, double omega) const {
+  double l = 0.0;
+  for (const Attachment& at : attachments(s.t)) {
+    const PointState p = point(s, at);
+    l += at.mass_kg * (p.r.x() * p.v.y() - p.r.y() * p.v.x() + omega * (p.r.x() * p.r.x() + p.r.y() * p.r.y()));
+  }
+  return l;
+}
+
+std::vector<OutputField> ClimberLoad::output_fields(const std::vector<std::size_t>&) const {
+  std::vector<OutputField> f;
+  for (const Climber& c : climbers_) {
+    const std::string g = "/climbers/" + c.name + "/";
+    f.push_back({g + "s", {}, "m", ""});  // material coordinate: unstretched arc length from the anchor
+    f.push_back({g + "altitude", {}, "m", ""});
+    f.push_back({g + "on_tether", {}, "1", ""});
+    f.push_back({g + "position", {3}, "m", ""});
+    f.push_back({g + "velocity", {3}, "m/s", ""});
+    f.push_back({g + "drive_force", {}, "N", "climber_" + c.name + "_peak_drive_force_N"});
+    f.push_back({g + "coriolis_force", {3}, "N", ""});
+    f.push_back({g + "lateral_offset", {2}, "m", "climber_" + c.name + "_peak_lateral_offset_m"});
+    f.push_back({g + "tension_below", {}, "N", ""});
+    f.push_back({g + "tension_above", {}, "N", ""});
+  }
+  return f;
+}
+
+void ClimberLoad::sample_outputs(const TetherState& s, const std::vector<std::size_t>&,
+                                 std::vector<std::vector<double>>& rows) const {
+  const std::vector<Attachment> att = attachments(s.t);
+  const std::size_t n_el = s_nodes_.size() - 1;
+  for (std::size_t c = 0; c < climbers_.size(); ++c) {
+    std::vector<double>* r = &rows[10 * c];
+    const auto it = std::find_if(att.begin(), att.end(), [&](const Attachment& a) { return a.climber == c; });
+    if (it == att.end()) {  // not on the tether (left, or a sudden load not yet applied)
+      const double nan = std::nan("");
+      r[0] = {climbers_[c].profile.at(s.t).s_m};
+      r[1] = {nan};
+      r[2] = {0.0};
+      r[3] = {nan, nan, nan};
+      r[4] = {nan, nan, nan};
+      r[5] = {0.0};
+      r[6] = {0.0, 0.0, 0.0};
+      r[7] = {0.0, 0.0};
+      r[8] = {nan};
+      r[9] = {nan};
+      continue;
+    }
+    const Attachment& at = *it;
+    const std::size_t e = at.element;
+    const PointState p = point(s, at);
+    const Eigen::Vector3d tangent = (s.x.col(e + 1) - s.x.col(e)).normalized();
+    const Eigen::Vector3d reaction_n = reaction(s, at);
+    // Coriolis force on the climber: -2 m Omega x v_c, from the point models' velocity terms.
+    Eigen::Matrix3d fv;
+    point_force(s.t, p, at.mass_kg, nullptr, &fv);
+    const Eigen::Vector3d coriolis = fv * p.v;
+    const Eigen::Vector3d on_line = (1 - at.xi) * reference_.col(e) + at.xi * reference_.col(e + 1);
+    const Eigen::Vector3d offset = p.r - on_line;
+    // Tensions just below and above the climber: the elements on either side of its nearest node.
+    const std::size_t k = e + (at.xi >= 0.5 ? 1 : 0);
+    const std::size_t below = k == 0 ? 0 : k - 1, above = std::min(k, n_el - 1);
+    const double nan = std::nan("");
+    r[0] = {s_nodes_[e] + at.xi * (s_nodes_[e + 1] - s_nodes_[e])};
+    // Altitude: distance from the planet's centre less the anchor's (on the bench: from node 0).
+    r[1] = {p.r.norm() - reference_.col(0).norm()};
+    r[2] = {1.0};
+    r[3] = {p.r.x(), p.r.y(), p.r.z()};
+    r[4] = {p.v.x(), p.v.y(), p.v.z()};
+    r[5] = {reaction_n.dot(tangent)};
+    r[6] = {coriolis.x(), coriolis.y(), coriolis.z()};
+    r[7] = {offset.y(), offset.z()};
+    r[8] = {bars_ ? bars_->tension(s, below) : nan};
+    r[9] = {bars_ ? bars_->tension(s, above) : nan};
+  }
+}
+
+}  // namespace hawser

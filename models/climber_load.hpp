@@ -1,0 +1,92 @@
+#pragma once
+// Climbers: moving masses riding the tether (physics.md section 5).
+//
+// A climber of mass m at material coordinate s(t) on element e sits at
+//   r_c = (1 - xi) x_e + xi x_{e+1},   xi = (s - s0_e) / L0_e,
+// moving with v_c = w^T v + xi' d and a_c = w^T a + a_rel, where w = (1 - xi, xi),
+// d = x_{e+1} - x_e and a_rel = 2 xi' (v_{e+1} - v_e) + xi'' d. Its equation m a_c = F_c + R
+// (F_c: gravity, centrifugal and Coriolis forces on it, from the same point models as the
+// nodes; R: the tether's push on it), with -R shared to the two nodes by the weights w,
+// gives for the nodes (virtual work, consistent inertia)
+//   (M + m w w^T) a = F + w (F_c - m a_rel).
+// This model adds w (F_c - m a_rel) to the forces and its Jacobian; the mass term m w w^T is
+// the system's (attachments()). The drive force is R along the element, the part of R that
+// keeps s(t) on its profile; R's power on the relative motion, R . (xi' d), is the drive's work.
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "models/bar_elements.hpp"
+#include "models/climber_profile.hpp"
+#include "models/force_model.hpp"
+
+namespace hawser {
+
+enum class ClimberEnd { park, leave, drop_payload };
+
+struct Climber {
+  std::string name;
+  double mass_kg = 0.0;
+  ClimberProfile profile;
+  ClimberEnd at_end = ClimberEnd::park;
+  double end_mass_kg = 0.0;  // drop_payload: the mass that stays on
+  bool sudden = false;       // not in the starting equilibrium: its weight arrives at its start time
+};
+
+/// Where a climber is at time t, for the mass matrix and the forces.
+struct Attachment {
+  std::size_t climber;
+  std::size_t element;
+  double xi, xi_dot, xi_ddot;  // [-], [1/s], [1/s^2]
+  double mass_kg;
+};
+
+class ClimberLoad : public ForceModel {
+ public:
+  /// s_nodes: material coordinate of every node [m]; point_models: the forces that act on a
+  /// point mass (gravity, frame, tides), evaluated at the climber.
+  ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_nodes, std::vector<const ForceModel*> point_models,
+              const Matrix3X& reference_position);
+  std::string name() const override { return "climbers"; }
+  /// The bars, for the tensions next to each climber in the outputs.
+  void set_bars(const BarElements* bars) { bars_ = bars; }
+
+  /// In parked mode (for the starting equilibrium) every climber that is not a sudden load
+  /// sits at its start, at rest.
+  void set_parked(bool parked) { parked_ = parked; }
+  std::vector<Attachment> attachments(double t_s) const;
+
+  void add_forces(const TetherState& s, Matrix3X& f) const override;
+  void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
+  std::vector<double> event_times() const override;
+  std::vector<OutputField> output_fields(const std::vector<std::size_t>& nodes) const override;
+  void sample_outputs(const TetherState& s, const std::vector<std::size_t>& nodes,
+                      std::vector<std::vector<double>>& rows) const override;
+
+  /// Kinetic (rotating frame) plus potential energy of the climbers [J].
+  double climber_energy(const TetherState& s) const;
+  /// Angular momentum of the climbers about the spin axis, inertial frame [kg m^2/s].
+  double climber_angular_momentum(const TetherState& s, double omega) const;
+  /// Power of the drives on the climbers' motion relative to the tether [W]; needs s.a.
+  double drive_power(const TetherState& s) const;
+  const std::vector<Climber>& climbers() const { return climbers_; }
+
+ private:
+  struct PointState {
+    Eigen::Vector3d r, v;
+  };
+  PointState point(const TetherState& s, const Attachment& at) const;
+  /// F_c and its derivatives with respect to r_c, v_c (from the point models).
+  Eigen::Vector3d point_force(double t, const PointState& p, double mass, Eigen::Matrix3d* dr, Eigen::Matrix3d* dv) const;
+  /// The tether's push R on the climber (m a_c - F_c); needs s.a.
+  Eigen::Vector3d reaction(const TetherState& s, const Attachment& at) const;
+
+  std::vector<Climber> climbers_;
+  std::vector<double> s_nodes_;
+  std::vector<const ForceModel*> point_models_;
+  Matrix3X reference_;
+  bool parked_ = false;
+  const BarElements* bars_ = nullptr;
+};
+
+}  // namespace hawser
