@@ -7,6 +7,7 @@
 #include "solver/key_reference.hpp"
 #include "solver/errors.hpp"
 #include "solver/initial_state.hpp"
+#include "solver/modal_analysis.hpp"
 #include "solver/progress.hpp"
 #include "solver/result_recorder.hpp"
 #include "solver/scenario.hpp"
@@ -77,7 +78,21 @@ int cmd_run(const CommonOptions& opt, std::string output) {
   if (output.empty()) output = default_output(opt.scenario);
   const TetherModel model = build_model(sc);
   TetherSystem system(model);
-  const std::vector<double> y0 = initial_state(system, sc.initial);
+  std::vector<double> y0 = initial_state(system, sc.initial);
+  if (sc.initial.mode_index > 0) {
+    // Start in a mode of the linearised tether (the check run of a modal analysis).
+    ModalOptions mo;
+    mo.modes = sc.initial.mode_index;
+    const ModalResult modes = modal_analysis(model, mo);
+    if (static_cast<int>(modes.modes.size()) < sc.initial.mode_index)
+      throw InputError("error: " + sc.values.where("initial.mode.index") + ": initial.mode.index: only " +
+                       std::to_string(modes.modes.size()) + " modes found\n");
+    const Mode& m = modes.modes[static_cast<std::size_t>(sc.initial.mode_index - 1)];
+    const std::vector<double> ym = mode_initial_state(system, m, sc.initial.mode_amplitude_m);
+    for (std::size_t i = 0; i < y0.size(); ++i) y0[i] += ym[i];
+    std::printf("starting in mode %d: period %.6g s (%.4g h), %s, amplitude %.6g m\n", sc.initial.mode_index,
+                m.period_s, m.period_s / 3600.0, mode_kind_name(m.kind), sc.initial.mode_amplitude_m);
+  }
   RunOptions ro = run_options(sc.simulation, system.layout());
   ro.flush_every = sc.output.flush_every;
   ro.progress = stderr_is_terminal();

@@ -64,6 +64,8 @@ struct KickSpec {
 struct InitialSpec {
   std::vector<DisplacementSpec> displacements;
   std::vector<KickSpec> kicks;
+  int mode_index = 0;           // 1 = lowest mode; 0 = none
+  double mode_amplitude_m = 0.0;
 };
 
 struct OutputSpec {

@@ -83,6 +83,10 @@ void build_initial_and_output(const ScenarioValues& v, double length_m, int elem
                               std::to_string(last_free) + ")"});
     s.initial.kicks.push_back(k);
   }
+  if (v.has("initial.mode")) {
+    s.initial.mode_index = static_cast<int>(v.integer("initial.mode.index"));
+    s.initial.mode_amplitude_m = v.quantity("initial.mode.amplitude");
+  }
   s.output.node_stride = static_cast<int>(v.integer("output.node_stride"));
   s.output.flush_every = static_cast<int>(v.integer("output.flush_every"));
   if (v.has("output.nodes")) {
