@@ -27,14 +27,12 @@ void ClimberProfile::push(double duration, double v0, double a) {
   times_.push_back(t0 + duration);
 }
 
+ClimberProfile::ClimberProfile(double start, double from, double to)
+    : start_(start), from_(from), to_(to), dir_(to >= from ? 1 : -1), times_{start} {}
+
 ClimberProfile ClimberProfile::ramps(double start, double from, double to, double cruise, double accel, double decel,
                                      std::vector<Dwell> dwells) {
-  ClimberProfile p;
-  p.start_ = start;
-  p.from_ = from;
-  p.to_ = to;
-  p.dir_ = to >= from ? 1 : -1;
-  p.times_.push_back(start);
+  ClimberProfile p(start, from, to);
   if (cruise <= 0 || accel <= 0 || decel <= 0) throw ProfileError("cruise speed, acceleration and deceleration must be positive");
   // Stops along the path, as distances from the start, in travel order.
   std::sort(dwells.begin(), dwells.end(), [&](const Dwell& a, const Dwell& b) { return p.dir_ * a.at_m < p.dir_ * b.at_m; });
@@ -72,12 +70,7 @@ ClimberProfile ClimberProfile::ramps(double start, double from, double to, doubl
 }
 
 ClimberProfile ClimberProfile::table(double start, double from, double to, std::vector<SpeedRow> rows) {
-  ClimberProfile p;
-  p.start_ = start;
-  p.from_ = from;
-  p.to_ = to;
-  p.dir_ = to >= from ? 1 : -1;
-  p.times_.push_back(start);
+  ClimberProfile p(start, from, to);
   if (rows.size() < 2) throw ProfileError("a speed table needs at least two rows");
   std::sort(rows.begin(), rows.end(), [&](const SpeedRow& a, const SpeedRow& b) { return p.dir_ * a.at_m < p.dir_ * b.at_m; });
   if (std::abs(rows.front().at_m - from) > 1e-6 * std::max(1.0, std::abs(to - from)) ||

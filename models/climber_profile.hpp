@@ -44,6 +44,8 @@ class ClimberProfile {
   /// A table of speeds at positions along the path (first row at `from`, last at `to`).
   static ClimberProfile table(double start_time_s, double from_m, double to_m, std::vector<SpeedRow> rows);
 
+  /// A climber waiting at `from` for ever (profiles come from ramps() or table()).
+  ClimberProfile() : times_{0.0} {}
   Kinematics at(double t_s) const;
   double start_time() const { return start_; }
   double end_time() const { return times_.back(); }
@@ -56,6 +58,7 @@ class ClimberProfile {
   std::vector<double> crossing_times(const std::vector<double>& positions_m) const;
 
  private:
+  ClimberProfile(double start_time_s, double from_m, double to_m);
   struct Segment {
     double t0, d0, v0, a;  // start time, distance travelled, speed, acceleration (along the path)
   };
