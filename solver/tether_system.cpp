@@ -14,6 +14,7 @@ TetherSystem::TetherSystem(const TetherModel& model)
       jac_(model.nodes()),
       newton_jac_(model.nodes()),
       diag_(model.mesh.node_mass),
+      inverse_mass_(model.mesh.node_mass.cwiseInverse()),
       off_(Eigen::VectorXd::Zero(model.nodes())),
       thomas_c_(model.nodes()),
       dinv_(model.nodes()),
@@ -226,8 +227,12 @@ void TetherSystem::solve_mass(Matrix3X& f) const {
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
   // Prescribed nodes do not move with the forces: their accelerations are the prescribed
   // ones (zero for fixed points), and their mass couplings drop out of the free equations.
-  for (std::size_t k = 0; k < f.cols(); ++k)
-    if (!layout_.is_free(k)) f.col(k).setZero();
+  for (std::size_t k = 0; k < first; ++k) f.col(k).setZero();
+  for (std::size_t k = last + 1; k < static_cast<std::size_t>(f.cols()); ++k) f.col(k).setZero();
+  if (touched_.empty()) {  // lumped masses only: a = f / m
+    for (std::size_t k = first; k <= last; ++k) f.col(k) *= inverse_mass_[k];
+    return;
+  }
   std::size_t k = first;
   while (k <= last) {
     // A run k..q of free nodes joined by non-zero off-diagonals.

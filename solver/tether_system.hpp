@@ -66,7 +66,7 @@ class TetherSystem : public OdeSystem {
   /// solve per lone climber (the Sherman-Morrison formula), the tridiagonal (Thomas)
   /// algorithm on runs of nodes coupled by several climbers; a = f / m elsewhere.
   void solve_mass(Matrix3X& f_to_a) const;
-  Eigen::VectorXd diag_, off_;
+  Eigen::VectorXd diag_, inverse_mass_, off_;
   std::vector<std::size_t> touched_;  // nodes whose mass entries differ from the lumped ones
   mutable Eigen::VectorXd thomas_c_;
   Matrix3X x_, v_, f_;    // work arrays (all nodes)
