@@ -9,10 +9,18 @@
 namespace hawser::sundials {
 namespace {
 
+// The hottest loops are compiled twice, for AVX2 and for the baseline x86-64 (GCC's
+// function multi-versioning picks one at load time), so the program still runs on any x86-64.
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
+#define HAWSER_VECTOR_CLONES __attribute__((target_clones("avx2", "default")))
+#else
+#define HAWSER_VECTOR_CLONES
+#endif
+
 inline double* d(N_Vector v) { return NV_DATA_S(v); }
 inline sunindextype n(N_Vector v) { return NV_LENGTH_S(v); }
 
-void linear_sum(realtype a, N_Vector x, realtype b, N_Vector y, N_Vector z) {
+HAWSER_VECTOR_CLONES void linear_sum(realtype a, N_Vector x, realtype b, N_Vector y, N_Vector z) {
   const double *xd = d(x), *yd = d(y);
   double* zd = d(z);
   const sunindextype len = n(x);
@@ -29,17 +37,17 @@ void div(N_Vector x, N_Vector y, N_Vector z) {
   double* zd = d(z);
   for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = xd[i] / yd[i];
 }
-void scale(realtype c, N_Vector x, N_Vector z) {
+HAWSER_VECTOR_CLONES void scale(realtype c, N_Vector x, N_Vector z) {
   const double* xd = d(x);
   double* zd = d(z);
   for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = c * xd[i];
 }
-void absolute(N_Vector x, N_Vector z) {
+HAWSER_VECTOR_CLONES void absolute(N_Vector x, N_Vector z) {
   const double* xd = d(x);
   double* zd = d(z);
   for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = std::abs(xd[i]);
 }
-void inverse(N_Vector x, N_Vector z) {
+HAWSER_VECTOR_CLONES void inverse(N_Vector x, N_Vector z) {
   const double* xd = d(x);
   double* zd = d(z);
   for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = 1.0 / xd[i];
@@ -61,7 +69,7 @@ realtype max_norm(N_Vector x) {
   for (sunindextype i = 0, len = n(x); i < len; ++i) m = std::max(m, std::abs(xd[i]));
   return m;
 }
-realtype wsqr_sum(N_Vector x, N_Vector w) {
+HAWSER_VECTOR_CLONES realtype wsqr_sum(N_Vector x, N_Vector w) {
   const double *xd = d(x), *wd = d(w);
   double s = 0.0;
   for (sunindextype i = 0, len = n(x); i < len; ++i) {
@@ -112,7 +120,7 @@ booleantype inv_test(N_Vector x, N_Vector z) {
   }
   return ok ? SUNTRUE : SUNFALSE;
 }
-int linear_combination(int nv, realtype* c, N_Vector* x, N_Vector z) {
+HAWSER_VECTOR_CLONES int linear_combination(int nv, realtype* c, N_Vector* x, N_Vector z) {
   const sunindextype len = n(z);
   double* zd = d(z);
   if (nv == 1) {
@@ -138,7 +146,7 @@ int linear_combination(int nv, realtype* c, N_Vector* x, N_Vector z) {
   }
   return 0;
 }
-int scale_add_multi(int nv, realtype* a, N_Vector x, N_Vector* y, N_Vector* z) {
+HAWSER_VECTOR_CLONES int scale_add_multi(int nv, realtype* a, N_Vector x, N_Vector* y, N_Vector* z) {
   const double* xd = d(x);
   const sunindextype len = n(x);
   for (int k = 0; k < nv; ++k) {

@@ -17,6 +17,7 @@ TetherSystem::TetherSystem(const TetherModel& model)
       inverse_mass_(model.mesh.node_mass.cwiseInverse()),
       off_(Eigen::VectorXd::Zero(model.nodes())),
       thomas_c_(model.nodes()),
+      gdx_(model.nodes()),
       dinv_(model.nodes()),
       lower_(model.nodes()),
       upper_(model.nodes()),
@@ -167,6 +168,12 @@ void TetherSystem::newton_factor(double gamma) {
     a.diagonal().array() += m;
     return a;
   };
+  // gamma dF_k/dx_j for j = k-1, k, k+1, kept side by side for the solves.
+  for (std::size_t k = first; k <= last; ++k) {
+    gdx_[k][0] = k > first ? Eigen::Matrix3d(gamma * newton_jac_.dx(k, k - 1)) : Eigen::Matrix3d::Zero();
+    gdx_[k][1] = gamma * newton_jac_.dx(k, k);
+    gdx_[k][2] = k < last ? Eigen::Matrix3d(gamma * newton_jac_.dx(k, k + 1)) : Eigen::Matrix3d::Zero();
+  }
   // D_first = A_ff; L_k = A_{k,k-1} D_{k-1}^-1; D_k = A_kk - L_k A_{k-1,k}.
   dinv_[first] = block(first, first).inverse();
   for (std::size_t k = first + 1; k <= last; ++k) {
@@ -185,9 +192,10 @@ void TetherSystem::newton_solve(double* b) const {
   auto rv = [&](std::size_t k) { return Vec3(b + StateLayout::kPerNode * (k - first) + 3); };
   // Right-hand side of the reduced system: (M r_v)_k + gamma sum_j dF_k/dx_j r_u,j.
   for (std::size_t k = first; k <= last; ++k) {
-    Eigen::Vector3d r = diag_[k] * rv(k) + gamma * (newton_jac_.dx(k, k) * ru(k));
-    if (k > first) r.noalias() += off_[k - 1] * rv(k - 1) + gamma * (newton_jac_.dx(k, k - 1) * ru(k - 1));
-    if (k < last) r.noalias() += off_[k] * rv(k + 1) + gamma * (newton_jac_.dx(k, k + 1) * ru(k + 1));
+    const auto& g = gdx_[k];
+    Eigen::Vector3d r = diag_[k] * rv(k) + g[1] * ru(k);
+    if (k > first) r.noalias() += off_[k - 1] * rv(k - 1) + g[0] * ru(k - 1);
+    if (k < last) r.noalias() += off_[k] * rv(k + 1) + g[2] * ru(k + 1);
     work_[k] = r;
   }
   // Forward elimination, then back substitution.

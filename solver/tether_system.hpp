@@ -3,6 +3,7 @@
 // banded Jacobian from the force models (the one place this happens), following the state
 // layout of solver/state_layout.hpp. Equations of motion of free node k (lumped mass m_k):
 //   u_k' = v_k,   m_k v_k' = sum of the model forces on node k.
+#include <array>
 #include <vector>
 
 #include "solver/ode_system.hpp"
@@ -74,6 +75,7 @@ class TetherSystem : public OdeSystem {
   NodeJacobian newton_jac_;                 // Jacobian of the last newton_jacobian()
   double newton_gamma_ = 0.0;
   double newton_t_ = 0.0;                   // time of the last newton_jacobian()
+  std::vector<std::array<Eigen::Matrix3d, 3>> gdx_;    // per free node: gamma dF_k/dx_{k-1,k,k+1}
   std::vector<Eigen::Matrix3d> dinv_, lower_, upper_;  // per free node: D^-1, L, A_{k,k+1}
   mutable std::vector<Eigen::Vector3d> work_;
 };
