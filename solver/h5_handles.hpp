@@ -19,14 +19,18 @@ namespace hawser {
 inline void h5_silence_errors() { H5Eset_auto2(H5E_DEFAULT, nullptr, nullptr); }
 
 namespace detail {
-// H5Ewalk2 callback: keep the innermost description that names a function (the first record
-// walked downward is the API call the caller made; the last one is where it really failed).
+// H5Ewalk2 callback: keep the last description walked downward, i.e. the innermost one, where
+// the failure was found (the first is the API call the caller made).
 inline herr_t h5_collect_error(unsigned /*n*/, const H5E_error2_t* err, void* out) {
-  auto* text = static_cast<std::string*>(out);
-  if (err != nullptr && err->desc != nullptr && err->desc[0] != '\0') {
-    *text = std::string(err->func_name ? err->func_name : "?") + ": " + err->desc;
+  try {  // no exception may cross the C library
+    auto* text = static_cast<std::string*>(out);
+    if (err != nullptr && err->desc != nullptr && err->desc[0] != '\0') {
+      *text = std::string(err->func_name ? err->func_name : "?") + ": " + err->desc;
+    }
+    return 0;
+  } catch (...) {
+    return -1;
   }
-  return 0;
 }
 
 inline std::string h5_error_text() {

@@ -51,6 +51,9 @@ struct CommitState {
   haddr_t committed_end = 0;  // end of the file as of the last commit (bytes)
   haddr_t reserve = 0;        // end of allocation the superblock on disk claims while running
   std::map<haddr_t, HeldWrite> held;  // non-overlapping, keyed by address
+  // Node images that drop entries (a B-tree split moved them to a new sibling), kept off the
+  // disk until close: see commit().
+  std::map<haddr_t, HeldWrite> deferred;
   std::vector<unsigned char> superblock;          // latest v2 superblock from the library
   std::vector<unsigned char> superblock_on_disk;  // what commit() last wrote at address 0
 };
@@ -203,18 +206,25 @@ void hold(CommitState& s, haddr_t addr, const unsigned char* data, std::size_t s
   s.held.emplace(addr, HeldWrite{{data, data + size}, type});
 }
 
-// Copy held bytes that fall in [addr, addr + size) over `out`.
-void overlay_held(const CommitState& s, haddr_t addr, std::size_t size, unsigned char* out) {
+// Copy the bytes of `writes` that fall in [addr, addr + size) over `out`.
+void overlay(const std::map<haddr_t, HeldWrite>& writes, haddr_t addr, std::size_t size,
+             unsigned char* out) {
   const haddr_t end = addr + size;
-  auto it = s.held.lower_bound(addr);
-  if (it != s.held.begin()) --it;
-  for (; it != s.held.end() && it->first < end; ++it) {
+  auto it = writes.lower_bound(addr);
+  if (it != writes.begin()) --it;
+  for (; it != writes.end() && it->first < end; ++it) {
     const haddr_t lo = std::max(addr, it->first);
     const haddr_t hi = std::min<haddr_t>(end, it->first + it->second.bytes.size());
     if (lo < hi) {
       std::memcpy(out + (lo - addr), it->second.bytes.data() + (lo - it->first), hi - lo);
     }
   }
+}
+
+// What the library wrote last: disk bytes under deferred images under held writes.
+void overlay_held(const CommitState& s, haddr_t addr, std::size_t size, unsigned char* out) {
+  overlay(s.deferred, addr, size, out);
+  overlay(s.held, addr, size, out);
   if (addr < s.superblock.size()) {  // the library reads its own superblock, not the claim
     const std::size_t n = std::min<std::size_t>(size, s.superblock.size() - addr);
     std::memcpy(out, s.superblock.data() + addr, n);
@@ -250,6 +260,27 @@ CommitRank commit_rank(const HeldWrite& w) {
 
 bool barrier(const CommitState& s) { return !s.sync || ::fdatasync(s.fd) == 0; }
 
+// Does `w` overwrite a v1 B-tree node ("TREE") or symbol table node ("SNOD") with fewer
+// entries at the same level (entry count: bytes 6-7, little-endian)? That is a split: the
+// entries moved to a new sibling that the parent now lists. A reader that read the parent
+// before the commit and reads this node after it would lose them, so the shrunken image is
+// not written while the file is open; the old, longer one stays valid beside the new parent,
+// which routes those keys to the sibling.
+bool drops_entries(const CommitState& s, haddr_t addr, const HeldWrite& w) {
+  const auto& b = w.bytes;
+  if (w.type != H5FD_MEM_BTREE || b.size() < 8) return false;
+  const bool tree = std::memcmp(b.data(), "TREE", 4) == 0;
+  if (!tree && std::memcmp(b.data(), "SNOD", 4) != 0) return false;
+  unsigned char disk[8];
+  if (!pread_all(s.fd, disk, sizeof disk, addr) || std::memcmp(disk, b.data(), 4) != 0) {
+    return false;
+  }
+  if (tree && (disk[4] != b[4] || disk[5] != b[5])) return false;  // a root that grew a level
+  const unsigned on_disk = disk[6] | (disk[7] << 8);
+  const unsigned now = b[6] | (b[7] << 8);
+  return now < on_disk;
+}
+
 // Make the file on disk the library's current view, one readable state after another.
 // `closing`: the last commit; the superblock then claims the true end and the file is cut to it.
 herr_t commit(CommitState& s, bool closing) {
@@ -268,7 +299,8 @@ herr_t commit(CommitState& s, bool closing) {
     superblock = superblock_claiming(s.superblock, claimed);
   }
   const bool new_superblock = !superblock.empty() && superblock != s.superblock_on_disk;
-  if (s.held.empty() && !new_superblock && s.physical_end == claimed) {
+  const bool pending = !s.held.empty() || (closing && !s.deferred.empty());
+  if (!pending && !new_superblock && s.physical_end == claimed) {
     s.committed_end = s.eoa;
     return 0;
   }
@@ -293,8 +325,20 @@ herr_t commit(CommitState& s, bool closing) {
     const HeldWrite* write;
   };
   std::vector<Step> steps;
-  steps.reserve(s.held.size());
-  for (const auto& [addr, w] : s.held) steps.push_back({commit_rank(w), addr, &w});
+  std::vector<haddr_t> to_defer;
+  steps.reserve(s.held.size() + (closing ? s.deferred.size() : 0));
+  for (const auto& [addr, w] : s.held) {
+    if (!closing && drops_entries(s, addr, w)) {
+      to_defer.push_back(addr);
+    } else {
+      steps.push_back({commit_rank(w), addr, &w});
+    }
+  }
+  if (closing) {  // no reader will walk down from an old parent any more
+    for (const auto& [addr, w] : s.deferred) {
+      if (s.held.count(addr) == 0) steps.push_back({commit_rank(w), addr, &w});
+    }
+  }
   std::stable_sort(steps.begin(), steps.end(), [](const Step& a, const Step& b) {
     if (a.rank.step != b.rank.step) return a.rank.step < b.rank.step;
     if (a.rank.sub != b.rank.sub) return a.rank.sub < b.rank.sub;
@@ -316,6 +360,13 @@ herr_t commit(CommitState& s, bool closing) {
     s.physical_end = claimed;
     if (!barrier(s)) return io_error("fdatasync");
   }
+  for (const auto& entry : s.held) {  // to_defer is sorted: it was filled in address order
+    if (!std::binary_search(to_defer.begin(), to_defer.end(), entry.first)) {
+      s.deferred.erase(entry.first);  // a newer image went to disk
+    }
+  }
+  for (const haddr_t addr : to_defer) s.deferred[addr] = std::move(s.held[addr]);
+  if (closing) s.deferred.clear();
   s.held.clear();
   if (!superblock.empty()) s.superblock_on_disk = std::move(superblock);
   s.committed_end = s.eoa;
@@ -382,9 +433,18 @@ H5FD_t* cf_open(const char* name, unsigned flags, hid_t fapl, haddr_t /*maxaddr*
   return &file->pub;
 }
 
+// commit() for the C callbacks: no exception may cross the library.
+herr_t commit_noexcept(CommitState& s, bool closing) {
+  try {
+    return commit(s, closing);
+  } catch (const std::exception& e) {
+    return push_error("hawser commit", H5E_CANTFLUSH, e.what());
+  }
+}
+
 herr_t cf_close(H5FD_t* file) {
   auto* cf = reinterpret_cast<CommitFile*>(file);
-  herr_t status = commit(*cf->state, true);
+  herr_t status = commit_noexcept(*cf->state, true);
   if (::close(cf->state->fd) != 0) {
     status = push_error("hawser close", H5E_CANTCLOSEFILE, errno_text("close", cf->state->name));
   }
@@ -446,8 +506,9 @@ herr_t cf_read(H5FD_t* file, H5FD_mem_t /*type*/, hid_t /*dxpl*/, haddr_t addr, 
   const CommitState& s = state_of(file);
   auto* out = static_cast<unsigned char*>(buf);
   const std::size_t on_disk =
-      addr < s.physical_end ? static_cast<std::size_t>(std::min<haddr_t>(size, s.physical_end - addr))
-                            : 0;
+      addr < s.physical_end
+          ? static_cast<std::size_t>(std::min<haddr_t>(size, s.physical_end - addr))
+          : 0;
   if (on_disk > 0 && !pread_all(s.fd, out, on_disk, addr)) {
     return push_error("hawser read", H5E_READERROR, errno_text("pread", s.name));
   }
@@ -485,7 +546,7 @@ herr_t cf_write(H5FD_t* file, H5FD_mem_t type, hid_t /*dxpl*/, haddr_t addr, siz
 }
 
 herr_t cf_flush(H5FD_t* file, hid_t /*dxpl*/, hbool_t closing) {
-  return commit(state_of(file), closing);
+  return commit_noexcept(state_of(file), closing);
 }
 
 // The file is sized by commit(), in its place in the order.
@@ -594,13 +655,13 @@ void replace_string_attribute(hid_t object, const std::string& name, const std::
   replace_attribute(object, name, type.get(), type.get(), value.c_str());
 }
 
-// Chunk shape of a series: rows wider than 1 MiB are split along their largest axes; then as
-// many rows as fill about 64 KiB, at most 512 (a chunk left partial by a flush is rewritten
-// elsewhere by the next one, so narrow series keep small chunks).
+// Chunk shape of a series (the reasons and the measurements are in h5_writer.hpp): rows of
+// 4 KiB or more make one chunk per time step, split along their widest axes if over 1 MiB;
+// narrower rows are grouped up to 4 KiB. A chunk left incomplete by a flush stays in the file
+// uncompressed at full size once it is complete, so incomplete chunks must stay small.
 std::vector<hsize_t> series_chunk(const std::vector<hsize_t>& row_dims) {
-  constexpr hsize_t kMaxRowBytes = 1024 * 1024;
-  constexpr hsize_t kTargetBytes = 64 * 1024;
-  constexpr hsize_t kMaxRows = 512;
+  constexpr hsize_t kMaxChunkBytes = 1024 * 1024;
+  constexpr hsize_t kGroupBytes = 4 * 1024;
   std::vector<hsize_t> chunk(1 + row_dims.size(), 1);
   std::copy(row_dims.begin(), row_dims.end(), chunk.begin() + 1);
   const auto row_bytes = [&chunk] {
@@ -608,11 +669,11 @@ std::vector<hsize_t> series_chunk(const std::vector<hsize_t>& row_dims) {
     for (std::size_t i = 1; i < chunk.size(); ++i) bytes *= chunk[i];
     return bytes;
   };
-  while (row_bytes() > kMaxRowBytes) {
+  while (row_bytes() > kMaxChunkBytes) {
     const auto widest = std::max_element(chunk.begin() + 1, chunk.end());
     *widest = (*widest + 1) / 2;
   }
-  chunk[0] = std::clamp<hsize_t>(kTargetBytes / row_bytes(), 1, kMaxRows);
+  chunk[0] = std::max<hsize_t>(1, kGroupBytes / row_bytes());
   return chunk;
 }
 
@@ -627,9 +688,66 @@ struct H5Writer::Series {
   H5DatasetId dataset;
   std::vector<hsize_t> row_dims;
   std::size_t row_size = 1;     // doubles per row
+  hsize_t chunk_rows = 1;       // rows per chunk along time
   hsize_t rows_in_file = 0;
+  std::vector<double> tail;     // rows of the last, incomplete chunk, already in the file
   std::vector<double> pending;  // rows appended since the last flush, row-major
 };
+
+namespace {
+// Filter mask of H5Dwrite_chunk: bit i set skips filter i; the pipeline is shuffle, deflate.
+constexpr std::uint32_t kUnfiltered = 0x3;
+}  // namespace
+
+// Whole chunks go through the filters (shuffle, deflate) and are written once. The incomplete
+// last chunk is written unfiltered at full chunk size (rows not yet there hold the NaN fill),
+// so the next flush rewrites it in place -- same size, and the same bytes for the rows already
+// there, so even a torn write cannot harm them -- instead of leaving a compressed copy behind
+// at every flush (freed space is never reused, see the header).
+void H5Writer::write_rows(Series& s) {
+  if (s.pending.empty()) return;
+  const std::size_t width = s.row_size;
+  const hsize_t r = s.chunk_rows;
+  const hsize_t tail_rows = s.tail.size() / width;
+  const hsize_t new_rows = s.pending.size() / width;
+  const hsize_t start = s.rows_in_file - tail_rows;  // first row of the incomplete chunk
+  const hsize_t total = tail_rows + new_rows;
+  const hsize_t whole = total / r * r;
+
+  std::vector<double> rows = s.tail;
+  rows.insert(rows.end(), s.pending.begin(), s.pending.end());
+  std::vector<hsize_t> dims{s.rows_in_file + new_rows};
+  dims.insert(dims.end(), s.row_dims.begin(), s.row_dims.end());
+  h5check(H5Dset_extent(s.dataset.get(), dims.data()), "H5Dset_extent");
+
+  std::vector<hsize_t> offset(dims.size(), 0);
+  if (whole > 0) {
+    std::vector<hsize_t> count{whole};
+    count.insert(count.end(), s.row_dims.begin(), s.row_dims.end());
+    offset[0] = start;
+    const H5DataspaceId file_space{h5check(H5Dget_space(s.dataset.get()), "H5Dget_space")};
+    h5check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, offset.data(), nullptr,
+                                count.data(), nullptr),
+            "H5Sselect_hyperslab");
+    const H5DataspaceId mem_space{h5check(
+        H5Screate_simple(static_cast<int>(count.size()), count.data(), nullptr),
+        "H5Screate_simple")};
+    h5check(H5Dwrite(s.dataset.get(), H5T_NATIVE_DOUBLE, mem_space.get(), file_space.get(),
+                     H5P_DEFAULT, rows.data()),
+            "H5Dwrite");
+  }
+  if (total > whole) {
+    std::vector<double> chunk(r * width, std::numeric_limits<double>::quiet_NaN());
+    std::copy(rows.begin() + whole * width, rows.end(), chunk.begin());
+    offset[0] = start + whole;
+    h5check(H5Dwrite_chunk(s.dataset.get(), H5P_DEFAULT, kUnfiltered, offset.data(),
+                           chunk.size() * sizeof(double), chunk.data()),
+            "H5Dwrite_chunk");
+  }
+  s.tail.assign(rows.begin() + whole * width, rows.end());
+  s.rows_in_file += new_rows;
+  s.pending.clear();
+}
 
 H5Writer::H5Writer() = default;
 H5Writer::H5Writer(H5Writer&&) noexcept = default;
@@ -802,8 +920,11 @@ H5Writer::SeriesId H5Writer::create_series(const std::string& path,
   h5check(H5Pset_chunk_cache(dapl.get(), 521, std::max<hsize_t>(1024 * 1024, 4 * chunk_bytes), 1.0),
           "H5Pset_chunk_cache");
 
+  // Stored as native doubles (IEEE little-endian here): the unfiltered tail chunk is written
+  // with H5Dwrite_chunk, as raw bytes, so file and memory layout must agree.
+  series.chunk_rows = chunk[0];
   series.dataset = H5DatasetId{h5check(H5Dcreate2(file_.get(), series.path.c_str(),
-                                                  H5T_IEEE_F64LE, space.get(), H5P_DEFAULT,
+                                                  H5T_NATIVE_DOUBLE, space.get(), H5P_DEFAULT,
                                                   dcpl.get(), dapl.get()),
                                        "H5Dcreate2")};
   replace_string_attribute(series.dataset.get(), "units", units);
@@ -824,27 +945,7 @@ std::size_t H5Writer::length(SeriesId id) const {
 
 void H5Writer::flush() {
   require_open("flush");
-  for (Series& s : series_) {
-    if (s.pending.empty()) continue;
-    const hsize_t nrows = s.pending.size() / s.row_size;
-    std::vector<hsize_t> dims{s.rows_in_file + nrows}, start{s.rows_in_file}, count{nrows};
-    dims.insert(dims.end(), s.row_dims.begin(), s.row_dims.end());
-    start.resize(dims.size(), 0);
-    count.insert(count.end(), s.row_dims.begin(), s.row_dims.end());
-    h5check(H5Dset_extent(s.dataset.get(), dims.data()), "H5Dset_extent");
-    const H5DataspaceId file_space{h5check(H5Dget_space(s.dataset.get()), "H5Dget_space")};
-    h5check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, start.data(), nullptr,
-                                count.data(), nullptr),
-            "H5Sselect_hyperslab");
-    const H5DataspaceId mem_space{h5check(
-        H5Screate_simple(static_cast<int>(count.size()), count.data(), nullptr),
-        "H5Screate_simple")};
-    h5check(H5Dwrite(s.dataset.get(), H5T_NATIVE_DOUBLE, mem_space.get(), file_space.get(),
-                     H5P_DEFAULT, s.pending.data()),
-            "H5Dwrite");
-    s.rows_in_file += nrows;
-    s.pending.clear();
-  }
+  for (Series& s : series_) write_rows(s);
   // Writes the library's dirty state; the driver's flush callback then commits it in order.
   h5check(H5Fflush(file_.get(), H5F_SCOPE_GLOBAL), "H5Fflush");
 }

@@ -23,6 +23,8 @@ ResultRecorder::ResultRecorder(const std::string& path, const Scenario& sc, cons
   std::strftime(stamp, sizeof stamp, "%Y-%m-%dT%H:%M:%SZ", std::gmtime(&now));
   file_.set_attribute("/", "created", stamp);
   file_.write_string("/input/scenario", sc.text_as_run);
+  file_.set_attribute("/input/scenario", "units", "1");  // text: every dataset states its units
+  file_.set_attribute("/input/scenario", "content", "the scenario as run (YAML), after --set");
 
   file_.write_array("/mesh/s0", {nn}, model.equilibrium.s0_m.data(), "m");
   file_.write_array("/mesh/node_mass", {nn}, model.mesh.node_mass.data(), "kg");
