@@ -132,10 +132,11 @@ void ResultRecorder::finish(const RunSummary& s) {
     for (std::size_t i = 0; i < ms.fields.size(); ++i)
       if (!ms.fields[i].summary_peak.empty()) file_.set_attribute(g, ms.fields[i].summary_peak, ms.peaks[i]);
   if (!s.ruptures.empty()) {
-    std::vector<double> t, el, st;
+    std::vector<double> t, st;
+    std::vector<long long> el;
     for (const auto& r : s.ruptures) {
       t.push_back(r.time_s);
-      el.push_back(static_cast<double>(r.element));
+      el.push_back(static_cast<long long>(r.element));
       st.push_back(r.stress_pa);
     }
     file_.write_array("/summary/rupture_time", {t.size()}, t.data(), "s");

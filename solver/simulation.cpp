@@ -113,7 +113,23 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
   for (const VelocityJump& j : sys.model().jumps)
     if (j.time_s <= 0.0 && sys.layout().is_free(j.node))
       for (int a = 0; a < 3; ++a) y[sys.layout().v(j.node, a)] += j.delta_v_m_s[a];
-  emit(0.0);
+  {
+    // A start already past the ultimate strength has no crossing for the root function to
+    // find: it is a rupture at t = 0.
+    const TetherDiagnostics d0 = emit(0.0);
+    if (d0.max_stress_ratio >= 1.0) {
+      summary.ruptures.push_back({0.0, d0.max_stress_element, d0.max_stress_ratio * sys.model().ultimate_strength_pa});
+      if (opt.stop_on_rupture) {
+        summary.status = "stopped";
+        summary.message = "element " + std::to_string(d0.max_stress_element) +
+                          " is past its ultimate strength in the starting state";
+        summary.stats = SolverStats{};
+        summary.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - wall0).count();
+        sink.flush();
+        return summary;
+      }
+    }
+  }
   std::size_t next_event = 0;
   while (next_event < events.size() && events[next_event] <= 0.0) ++next_event;
 
