@@ -9,13 +9,13 @@ namespace hawser {
 AirDensity::AirDensity(bool standard, double rho)
     : standard_(standard), uniform_kg_m3_(rho), airless_m_(std::numeric_limits<double>::infinity()) {
   if (!standard_) return;
-  // The extended standard atmosphere falls monotonically and underflows to 0 (at about
-  // 11,000 km); find where, once, so that elements above it cost nothing.
+  // The extended standard atmosphere falls monotonically; find once where it drops below
+  // kVacuumDensity, so that the many elements above cost nothing.
   double lo = 86000.0, hi = 1e9;
-  if (atmosphere_.at(hi).density_kg_m3 > 0.0) return;
+  if (atmosphere_.at(hi).density_kg_m3 >= kVacuumDensity) return;
   while (hi - lo > 1.0) {
     const double mid = 0.5 * (lo + hi);
-    (atmosphere_.at(mid).density_kg_m3 > 0.0 ? lo : hi) = mid;
+    (atmosphere_.at(mid).density_kg_m3 >= kVacuumDensity ? lo : hi) = mid;
   }
   airless_m_ = hi;
 }

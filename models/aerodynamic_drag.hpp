@@ -44,12 +44,18 @@ namespace hawser {
 
 /// Air density against altitude: the U.S. Standard Atmosphere 1976 (with its stated extension
 /// above 86 km, models/standard_atmosphere.hpp) or one uniform value (the test bench).
+/// The standard's air ends where its density falls below kVacuumDensity (at about 320 km in
+/// the extension): above, the density is 0. Even a 1 km/s relative wind there would press a
+/// 0.1 m ribbon with 5e-16 N/m, some 1e-14 of its weight per metre; the cut spares the drag
+/// model the wind evaluations of the hundred-odd elements above it (the extension itself only
+/// underflows near 11,000 km).
 class AirDensity {
  public:
+  static constexpr double kVacuumDensity = 1e-20;  // [kg/m^3]
   static AirDensity us1976();
   static AirDensity uniform(double density_kg_m3);
   double at(double altitude_m) const;  // [kg/m^3]
-  /// Lowest altitude above which the density is exactly 0 (underflow) [m]; +infinity if never.
+  /// Altitude above which the density is taken as 0 [m]; +infinity if never.
   double airless_above_m() const { return airless_m_; }
 
  private:
@@ -77,8 +83,8 @@ class AerodynamicDrag : public ForceModel {
   std::vector<double> event_times() const override { return wind_->event_times(); }
   /// /environment/wind (K,3) m/s and /environment/air_density (K) kg/m^3 at the recorded nodes;
   /// /environment/drag_force (N,3) N on each element; /environment/drag_load (N) N/m, the
-  /// force per unit length |F_e| / l_e, whose peak goes to /summary as
-  /// peak_aerodynamic_load_N_per_m.
+  /// force per unit length |F_e| / l_e (independent of the mesh, unlike F_e), whose largest
+  /// recorded value goes to /summary as peak_aerodynamic_load_N_per_m.
   std::vector<OutputField> output_fields(const std::vector<std::size_t>& nodes) const override;
   void sample_outputs(const TetherState& s, const std::vector<std::size_t>& nodes,
                       std::vector<std::vector<double>>& rows) const override;

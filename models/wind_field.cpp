@@ -1,5 +1,6 @@
 #include "models/wind_field.hpp"
 
+#include <Eigen/Geometry>
 #include <algorithm>
 #include <cmath>
 
@@ -41,12 +42,21 @@ Eigen::Vector3d WindField::velocity_enu(double h, double t) const {
   Eigen::Vector3d u = Eigen::Vector3d::Zero();
   for (const WindProfile& w : winds_) u += w.velocity_enu(h, t);
   if (gusts_.size() > 0) u += gusts_.velocity_enu(h, t);
-  if (turbulence_) {
-    // The integrator may look a little past the last output; hold the last sample there.
-    const double tc = std::clamp(t, 0.0, turbulence_->end_s());
-    u += DrydenTurbulence::to_enu(turbulence_->velocity_uvw(h, tc), turbulence_downwind_enu_);
-  }
+  if (turbulence_) u += DrydenTurbulence::to_enu(turbulence_uvw(h, t), turbulence_downwind_enu_);
   return u;
+}
+
+Eigen::Vector3d WindField::turbulence_uvw(double h, double t) const {
+  // Catmull-Rom through the samples t_j = j dt around t (the end samples repeated at the ends
+  // of the series; held beyond its end).
+  const double dt = turbulence_->sample_interval_s(), end = turbulence_->end_s();
+  const double tc = std::clamp(t, 0.0, end);
+  const auto last = static_cast<long>(turbulence_->samples()) - 1;
+  const long k = std::min(static_cast<long>(tc / dt), last - 1);
+  const double s = tc / dt - static_cast<double>(k);
+  auto at = [&](long j) { return turbulence_->velocity_uvw(h, static_cast<double>(std::clamp(j, 0L, last)) * dt); };
+  const Eigen::Vector3d p0 = at(k - 1), p1 = at(k), p2 = at(k + 1), p3 = at(k + 2);
+  return p1 + 0.5 * s * ((p2 - p0) + s * ((2.0 * p0 - 5.0 * p1 + 4.0 * p2 - p3) + s * (3.0 * (p1 - p2) + p3 - p0)));
 }
 
 Eigen::Vector3d WindField::velocity(const Eigen::Vector3d& r, double t) const {
@@ -58,7 +68,7 @@ std::vector<double> WindField::event_times() const {
   std::vector<double> out = gusts_.event_times();
   for (const WindProfile& w : winds_)
     for (double te : {w.start_s(), w.end_s()})
-      if (std::isfinite(te)) out.push_back(te);
+      if (std::isfinite(te) && te > 0.0) out.push_back(te);  // a wind from t = 0 is no jump
   std::sort(out.begin(), out.end());
   out.erase(std::unique(out.begin(), out.end()), out.end());
   return out;

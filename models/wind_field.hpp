@@ -16,9 +16,15 @@
 // Composition, in (east, north, up) at altitude h and time t:
 //   u = sum_k wind_k(h, t) + gusts(h, t) + to_enu(turbulence_uvw(h, t), downwind(turbulence direction))
 // and in the rotating frame u_rot = east * u_e + north * u_n + up * u_u.
-// Turbulence: a series pre-generated over the run and interpolated linearly in time
-// (models/dryden_turbulence.hpp); past its end the last sample is held. It is continuous, so it
-// adds no event times; wind windows and gust onsets/ends are events.
+// Turbulence: a series pre-generated over the run (models/dryden_turbulence.hpp), read here at
+// its sample times t_j = j dt (where it is exact) and interpolated in time by the Catmull-Rom
+// cubic through the four samples around t (C1; Catmull & Rom 1974, the cardinal spline with
+// tension 1/2), not linearly as DrydenTurbulence itself does: a kink in the air's velocity at
+// every sample is a kink in the acceleration of the light lower nodes that follow it, and the
+// integrator's error test then cuts its step at each one (measured on scenarios/storm.yaml:
+// 102,111 steps and 5,317 error-test failures with linear interpolation, 72,609 and 8 with
+// this one). Past the series' end the last sample is held. The turbulence is
+// continuous, so it adds no event times; wind windows and gust onsets/ends are events.
 #include <Eigen/Core>
 #include <memory>
 #include <vector>
@@ -55,12 +61,13 @@ class WindField {
   Eigen::Vector3d velocity_enu(double altitude_m, double t_s) const;
   /// Wind in the rotating frame [m/s] at r [m] and time t [s].
   Eigen::Vector3d velocity(const Eigen::Vector3d& r_m, double t_s) const;
-  /// Starts and ends of the wind windows, gust onsets and ends [s], sorted, unique, finite.
+  /// Starts (after t = 0) and ends of the wind windows, gust onsets and ends [s], sorted, unique.
   std::vector<double> event_times() const;
   const AltitudeFrame& frame() const { return frame_; }
   bool calm() const { return winds_.empty() && gusts_.size() == 0 && !turbulence_; }
 
  private:
+  Eigen::Vector3d turbulence_uvw(double altitude_m, double t_s) const;
   AltitudeFrame frame_;
   std::vector<WindProfile> winds_;
   GustSet gusts_;

@@ -5,13 +5,13 @@
 #include <limits>
 #include <memory>
 #include <sstream>
+#include <utility>
 
 #include "models/aerodynamic_drag.hpp"
 #include "models/discrete_gust.hpp"
 #include "models/dryden_turbulence.hpp"
 #include "models/tidal_force.hpp"
 #include "models/wind_field.hpp"
-#include "solver/errors.hpp"
 #include "solver/scenario.hpp"
 #include "solver/tether_model.hpp"
 
@@ -187,7 +187,16 @@ void read_gusts(Keys& k, EnvironmentSpec& env) {
   }
 }
 
-void read_turbulence(Keys& k, EnvironmentSpec& env) {
+/// Sample interval [s] (given, or a tenth of the smallest L/V) and length [s] of the series: the
+/// whole run and a margin for the integrator's last step past its end.
+std::pair<double, double> turbulence_sampling(const TurbulenceSpec& t, double run_s) {
+  double smallest_tau = std::numeric_limits<double>::infinity();
+  for (const auto& s : t.stations) smallest_tau = std::min(smallest_tau, s.scale_m.minCoeff() / s.mean_speed_m_s);
+  const double dt = t.sample_interval_s > 0.0 ? t.sample_interval_s : smallest_tau / 10.0;
+  return {dt, std::max(1.1 * run_s, 2.0 * dt)};
+}
+
+void read_turbulence(Keys& k, double run_s, EnvironmentSpec& env) {
   const ScenarioValues& v = k.v();
   const std::string p = "environment.turbulence";
   if (!v.has(p)) return;
@@ -214,6 +223,11 @@ void read_turbulence(Keys& k, EnvironmentSpec& env) {
     t.stations.push_back(st);
   }
   if (k.has(p + ".stations") && count(v, p + ".stations") == 0) k.error(p + ".stations", "needs at least one station");
+  if (t.stations.empty() || t.stations.size() != count(v, p + ".stations")) return;
+  const auto [dt, length] = turbulence_sampling(t, run_s);
+  if (length / dt * static_cast<double>(t.stations.size()) > kMaxTurbulenceSamples)
+    k.error(p, fmt(length / dt) + " samples at " + fmt(dt) + " s for each of " + std::to_string(t.stations.size()) +
+                   " stations is too long a series for the run; give a longer sample_interval or fewer stations");
 }
 
 void read_tides(Keys& k, const Scenario& s, EnvironmentSpec& env) {
@@ -301,18 +315,20 @@ void read_events(Keys& k, const Scenario& s, double length_m, EnvironmentSpec& e
   }
 }
 
-/// The element spanning altitude h in the reference geometry, and the free node nearest to it.
+/// Altitude of a node in the reference geometry [m] (the bench: distance from node 0).
 double reference_altitude(const TetherModel& m, std::size_t node) {
   const Eigen::Vector3d r = m.mesh.position.col(static_cast<Eigen::Index>(node));
   return m.reference_radius_m > 0.0 ? r.norm() - m.reference_radius_m : r.x();
 }
 
+/// The element spanning altitude h in the reference geometry (its lower node's side at a node).
 std::size_t element_at(const TetherModel& m, double h) {
   for (std::size_t e = 0; e + 1 < m.elements(); ++e)
     if (h < reference_altitude(m, e + 1)) return e;
   return m.elements() - 1;
 }
 
+/// The free node nearest to altitude h in the reference geometry.
 std::size_t free_node_near(const TetherModel& m, double h) {
   const std::size_t last = m.far_end ? m.nodes() - 2 : m.nodes() - 1;
   std::size_t best = 1;
@@ -340,21 +356,11 @@ std::shared_ptr<const DrydenTurbulence> turbulence(const Scenario& sc) {
   const TurbulenceSpec& t = sc.environment.turbulence;
   if (!t.given) return nullptr;
   std::vector<DrydenStation> st;
-  double dt = t.sample_interval_s;
-  double smallest_tau = std::numeric_limits<double>::infinity();
-  for (const auto& s : t.stations) {
+  for (const auto& s : t.stations)
     st.push_back({s.altitude_m, s.mean_speed_m_s, s.sigma_m_s[0], s.sigma_m_s[1], s.sigma_m_s[2], s.scale_m[0],
                   s.scale_m[1], s.scale_m[2]});
-    smallest_tau = std::min(smallest_tau, s.scale_m.minCoeff() / s.mean_speed_m_s);
-  }
-  if (!(dt > 0.0)) dt = smallest_tau / 10.0;
-  // The whole run, and a margin for the integrator's last step past the end.
-  const double duration = std::max(1.1 * sc.simulation.duration_s, 2.0 * dt);
-  if (duration / dt * static_cast<double>(st.size()) > kMaxTurbulenceSamples)
-    throw InputError("error: " + t.where + ": environment.turbulence: " + fmt(duration / dt) + " samples at " +
-                     fmt(dt) + " s for " + std::to_string(st.size()) +
-                     " stations is too long a series; give a longer sample_interval or fewer stations\n");
-  return std::make_shared<const DrydenTurbulence>(st, t.seed, dt, duration);
+  const auto [dt, length] = turbulence_sampling(t, sc.simulation.duration_s);
+  return std::make_shared<const DrydenTurbulence>(st, t.seed, dt, length);
 }
 
 }  // namespace
@@ -381,7 +387,7 @@ EnvironmentSpec read_environment(const ScenarioValues& v, const Scenario& s, dou
         k.error(key, "acts through drag and needs air: set environment.atmosphere (us1976 on a planet)");
   read_winds(k, env);
   read_gusts(k, env);
-  read_turbulence(k, env);
+  read_turbulence(k, s.simulation.duration_s, env);
   read_tides(k, s, env);
   read_events(k, s, length_m, env);
   return env;

@@ -34,7 +34,7 @@ EnvironmentSpec read_environment(const ScenarioValues& v, const Scenario& s, dou
                                  std::vector<Problem>& problems);
 
 /// Adds drag (when there is air), tides, cuts and strikes of `scenario.environment` to `model`
-/// (whose mesh and bars are built). Throws InputError (located) for what only the mesh shows.
+/// (whose mesh and bars are built); read_environment() has validated everything it uses.
 void add_environment(const Scenario& scenario, TetherModel& model);
 
 }  // namespace hawser
