@@ -12,11 +12,15 @@
 #include "solver/result_recorder.hpp"
 #include "solver/scenario.hpp"
 #include "solver/simulation.hpp"
+#include "solver/tether_model.hpp"
 
 namespace hawser {
 
 int cmd_check(const CommonOptions& opt) {
   const Scenario sc = load_scenario(opt.scenario, opt.overrides);
+  // Building the model checks what needs the mesh and the equilibrium: climbers on the
+  // tether, flyable profiles, climbers that would meet, a tension equilibrium.
+  build_model(sc);
   std::cout << opt.scenario << ": ok (" << sc.name << ", " << sc.mesh.elements << " elements)\n";
   return 0;
 }
