@@ -10,6 +10,7 @@
 #include <algorithm>
 #include <cmath>
 #include <exception>
+#include <limits>
 #include <sstream>
 #include <stdexcept>
 
@@ -600,7 +601,10 @@ double TimeIntegrator::advance(double tout, double tstop, double* y_out) {
                                 " s lies before the last output at " + format_time(s.t_last_s) +
                                 " s");
   std::fill(s.roots_found.begin(), s.roots_found.end(), 0);
-  if (target == s.t_last_s) {  // nothing to integrate (CVODE would refuse: tout too close)
+  // Nothing to integrate when the target is the last time to round-off (a stop time computed
+  // one rounding step from an output time): CVODE would refuse with "tout too close".
+  if (std::abs(target - s.t_last_s) <=
+      4 * std::numeric_limits<double>::epsilon() * std::max(std::abs(target), std::abs(s.t_last_s))) {
     std::copy(s.y_last.begin(), s.y_last.end(), y_out);
     return target;
   }

@@ -3,6 +3,7 @@
 Bad input: each case writes the base scenario with one fault in its `climbers` or `schedules`
 list and runs `hawser run`; it must exit 2 (architecture.md, exit codes), write nothing on
 standard output and no result file, and name the file:line and the key path of the fault.
+`hawser check` must exit 2 on the same files (architecture.md: check reports every problem).
 Good input: a short run writes /climbers/<name>/* with a `units` attribute on every dataset
 and the climbers' peaks in /summary; the values are checked against physics:
 - the Coriolis force is -2 m Omega x v for the climber's own velocity (rotating-frame
@@ -18,7 +19,6 @@ Run by ctest as: python3 test_climbers_cli.py --hawser BIN --source DIR
 import argparse
 import math
 import os
-import re
 import subprocess
 import sys
 import tempfile
@@ -139,8 +139,6 @@ def main():
             return path
 
         # ---- bad input: exit 2, file:line and key, nothing written -------------------------
-        wren = "- name: wren"
-        petrel = "- name: petrel"
         cases = [
             ("climber beyond the top of the tether", mutate(BASE, "to: 600 km", "to: 120000 km"),
              line_of(BASE, "to: 600 km"), "climbers[0].to", ["beyond the top", "100000 km"]),
@@ -166,7 +164,6 @@ def main():
             ("schedule with a zero mass", BASE + mutate(SCHEDULE, "[1 t, 1.5 t]", "[1 t, 0 t]"),
              line_of(BASE + SCHEDULE, "masses:"), "schedules[0].masses", []),
         ]
-        del wren, petrel
         for name, text, line, key, words in cases:
             path = write(name.replace(" ", "_"), text)
             out = os.path.join(tmp, "bad.h5")

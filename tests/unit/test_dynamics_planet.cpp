@@ -25,7 +25,7 @@ RunSummary run(const Scenario& sc, testing::MemorySink& sink, TetherModel& model
 TEST_CASE("equilibrium holds for a simulated day", "[dynamics]") {
   // physics.md section 3: started at the exact discrete equilibrium, no node moves more than
   // 1e-6 of the tether length in one day (issue acceptance figure).
-  const Scenario sc = load_scenario(kDemo, {"simulation.duration=1 d", "simulation.output_interval=1 h",
+  const Scenario sc = load_scenario(kDemo, {"climbers=[]", "simulation.duration=1 d", "simulation.output_interval=1 h",
                                             "mesh.elements=100", "initial.displacements=[]"});
   testing::MemorySink sink;
   TetherModel model;
@@ -50,7 +50,7 @@ struct EnergyDrift {
 };
 
 EnergyDrift energy_drift(const std::string& rtol, const std::string& method) {
-  const Scenario sc = load_scenario(kDemo, {"simulation.duration=1 d", "simulation.output_interval=30 min",
+  const Scenario sc = load_scenario(kDemo, {"climbers=[]", "simulation.duration=1 d", "simulation.output_interval=30 min",
                                             "mesh.elements=40", "mesh.grading=uniform", "material.damping_time=0",
                                             "simulation.rtol=" + rtol, "simulation.atol_position=1e-6",
                                             "simulation.atol_velocity=1e-9", "simulation.method=" + method});
@@ -89,7 +89,7 @@ TEST_CASE("angular momentum about the spin axis changes only by the anchor's tor
   // is axisymmetric) has no moment about the spin axis, so dL_z/dt is the anchor's torque on the
   // tether (physics.md section 8). With a lateral swing the anchor torque is large; compare the
   // change of L_z with the integrated torque.
-  const Scenario sc = load_scenario(kDemo, {"simulation.duration=12 h", "simulation.output_interval=30 min",
+  const Scenario sc = load_scenario(kDemo, {"climbers=[]", "simulation.duration=12 h", "simulation.output_interval=30 min",
                                             "mesh.elements=40", "mesh.grading=uniform", "model.j2=true",
                                             "simulation.rtol=1e-8", "simulation.atol_position=1e-6",
                                             "simulation.atol_velocity=1e-9"});

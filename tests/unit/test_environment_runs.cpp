@@ -301,7 +301,7 @@ TEST_CASE("tidal force on each node is the difference of two gravity terms", "[e
   // physics.md section 4: a third body b at d pulls a node at r with GM_b (d - r)/|d - r|^3 and
   // the planet's centre with GM_b d/|d|^3; the frame feels the difference. Compared here with
   // the direct difference in long double (no cancellation at these ratios).
-  const Scenario sc = load_scenario(kDemo, {"mesh.elements=40", "environment.tides.moon=true",
+  const Scenario sc = load_scenario(kDemo, {"climbers=[]", "mesh.elements=40", "environment.tides.moon=true",
                                             "environment.tides.sun=true", "environment.tides.moon_phase=40 deg"});
   const TetherModel model = build_model(sc);
   const TidalForce* tide = find_model<TidalForce>(model);
@@ -334,7 +334,7 @@ TEST_CASE("the anchor longitude orients the tide bodies in the rotating frame", 
   // data's, models/third_body_tide.cpp).
   for (double extra_deg : {0.0, 90.0}) {
     const std::string lon = std::to_string(-160.0 + extra_deg) + " deg";
-    const Scenario sc = load_scenario(kDemo, {"mesh.elements=10", "environment.tides.moon=true",
+    const Scenario sc = load_scenario(kDemo, {"climbers=[]", "mesh.elements=10", "environment.tides.moon=true",
                                               "environment.tides.moon_inclination=0 deg",
                                               "environment.tides.moon_node_longitude=" + lon});
     const TetherModel model = build_model(sc);
@@ -426,7 +426,7 @@ TEST_CASE("with J2 the J2 equilibrium stays put, and without J2 it does not", "[
   // physics.md section 3: the discrete equilibrium solved in the field the run uses is exact.
   // Checked with J2 on for a day (to 1e-6 of the length, as the [dynamics] test without J2);
   // then the same J2 equilibrium run with point-mass gravity must drift, by far more.
-  const Scenario sc = load_scenario(kDemo, {"simulation.duration=1 d", "simulation.output_interval=2 h",
+  const Scenario sc = load_scenario(kDemo, {"climbers=[]", "simulation.duration=1 d", "simulation.output_interval=2 h",
                                             "mesh.elements=40", "initial.displacements=[]", "model.j2=true"});
   testing::MemorySink sink;
   TetherModel model;
@@ -499,7 +499,7 @@ TEST_CASE("a cut changes no momentum at its instant; then the upper part rises a
   CHECK(d_lower.dot(out) == Approx(-tension * dt).epsilon(1e-3));
 
   // Afterwards (half an hour): the freed upper part moves outward, the lower part falls.
-  const Scenario later = load_scenario(kDemo, {"mesh.elements=40", "mesh.grading=uniform", "initial.displacements=[]",
+  const Scenario later = load_scenario(kDemo, {"climbers=[]", "mesh.elements=40", "mesh.grading=uniform", "initial.displacements=[]",
                                                "simulation.duration=30 min", "simulation.output_interval=5 min",
                                                "events.cuts=[{altitude: 31000 km, time: 60}]"});
   testing::MemorySink ls;
@@ -642,7 +642,7 @@ TEST_CASE("environment and event keys: bad input is refused with its location", 
   // Tides need the Earth's Moon and Sun: refused on Mars.
   const std::string mars = [] {
     try {
-      load_scenario(kDemo, {"planet=mars", "environment.tides.sun=true"});
+      load_scenario(kDemo, {"climbers=[]", "planet=mars", "environment.tides.sun=true"});
     } catch (const InputError& e) {
       return std::string(e.what());
     }

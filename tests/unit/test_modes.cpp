@@ -239,7 +239,7 @@ double fd_mismatch(const TetherModel& model, const LinearisedTether& lin, bool w
 TEST_CASE("modes: tangent stiffness and velocity matrices match finite differences of the forces", "[modes]") {
   // The finite-difference derivative of the force assembly is the independent reference
   // (style.md habit 11). Planet: gravity with J2, centrifugal, Coriolis, Kelvin-Voigt bars.
-  const TetherModel planet = build_model(load_scenario(kDemo, {"mesh.elements=12", "model.j2=true"}));
+  const TetherModel planet = build_model(load_scenario(kDemo, {"climbers=[]", "mesh.elements=12", "model.j2=true"}));
   const LinearisedTether lin = linearise(planet);
   CHECK(lin.dofs() == 3 * 12);
   CHECK(fd_mismatch(planet, lin, false, 1.0) < 1e-6);   // 1 m on 1e7 m
@@ -305,7 +305,7 @@ TEST_CASE("modes: with rotation, eigenvalues follow the gyroscopic pattern", "[m
   // implied by the real matrices and not reported.)
   ModalOptions o;
   o.modes = 12;
-  const TetherModel undamped = build_model(load_scenario(kDemo, {"mesh.elements=60", "material.damping_time=0"}));
+  const TetherModel undamped = build_model(load_scenario(kDemo, {"climbers=[]", "mesh.elements=60", "material.damping_time=0"}));
   const ModalResult r = modal_analysis(undamped, o);
   REQUIRE(r.modes.size() == 12);
   CHECK(r.stiffness_negative_directions == 0);
@@ -319,7 +319,7 @@ TEST_CASE("modes: with rotation, eigenvalues follow the gyroscopic pattern", "[m
   // The Coriolis matrix really couples east-west and along (else the check proves little).
   CHECK(coupling > 1e-4);
 
-  const TetherModel damped = build_model(load_scenario(kDemo, {"mesh.elements=60"}));
+  const TetherModel damped = build_model(load_scenario(kDemo, {"climbers=[]", "mesh.elements=60"}));
   const ModalResult rd = modal_analysis(damped, o);
   for (const Mode& m : rd.modes) {
     INFO("lambda " << m.eigenvalue << ", along fraction " << m.kinetic_fraction[0]);
@@ -329,7 +329,7 @@ TEST_CASE("modes: with rotation, eigenvalues follow the gyroscopic pattern", "[m
 }
 
 TEST_CASE("modes: dense and shift-invert Arnoldi solvers agree", "[modes]") {
-  const TetherModel model = build_model(load_scenario(kDemo, {"mesh.elements=60"}));
+  const TetherModel model = build_model(load_scenario(kDemo, {"climbers=[]", "mesh.elements=60"}));
   ModalOptions dense, arnoldi;
   dense.modes = arnoldi.modes = 10;
   dense.dense_limit = 100000;
@@ -378,7 +378,7 @@ TEST_CASE("modes: the demo tether's lowest east-west period agrees with a time-d
   // uniform mesh keeps the run short (the geometric demo mesh's 20 km first element holds
   // every explicit or BDF step under a second); the modal period of the same mesh is the
   // reference. 10 km at the peak node is 1e-4 of the length.
-  const Scenario sc = load_scenario(kDemo, {"mesh.elements=60", "mesh.grading=uniform", "simulation.method=erk"});
+  const Scenario sc = load_scenario(kDemo, {"climbers=[]", "mesh.elements=60", "mesh.grading=uniform", "simulation.method=erk"});
   const TetherModel model = build_model(sc);
   ModalOptions o;
   o.modes = 4;
@@ -396,7 +396,7 @@ TEST_CASE("modes: the demo tether's lowest east-west period agrees with a time-d
 
 TEST_CASE("modes: benchmark, lowest 20 modes of a 2,000-element Earth tether", "[modes][benchmark]") {
   // Issue target: under 10 s of wall time on one core.
-  const TetherModel model = build_model(load_scenario(kDemo, {"mesh.elements=2000"}));
+  const TetherModel model = build_model(load_scenario(kDemo, {"climbers=[]", "mesh.elements=2000"}));
   ModalOptions o;
   o.modes = 20;
   const auto start = std::chrono::steady_clock::now();
@@ -407,7 +407,7 @@ TEST_CASE("modes: benchmark, lowest 20 modes of a 2,000-element Earth tether", "
   REQUIRE(r.modes.size() == 20);
   CHECK(r.max_backward_error < 1e-10);
   // Mesh convergence of the lowest mode against a 200-element mesh (the default demo).
-  const TetherModel coarse = build_model(load_scenario(kDemo, {}));
+  const TetherModel coarse = build_model(load_scenario(kDemo, {"climbers=[]", }));
   o.modes = 1;
   const ModalResult rc = modal_analysis(coarse, o);
   CHECK(rel(r.modes[0].period_s, rc.modes[0].period_s) == Approx(0.0).margin(1e-3));
