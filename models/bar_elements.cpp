@@ -29,14 +29,20 @@ BarElements::Kinematics BarElements::kinematics(const TetherState& s, std::size_
   return k;
 }
 
-void BarElements::add_forces(const TetherState& s, Matrix3X& f) const {
+void BarElements::add_forces(const TetherState& s, Matrix3X& f) const { add_forces_and_dissipation(s, f); }
+
+double BarElements::add_forces_and_dissipation(const TetherState& s, Matrix3X& f) const {
+  double power = 0.0;
   for (std::size_t e = 0; e < l0_.size(); ++e) {
     const Kinematics k = kinematics(s, e);
     if (k.tension == 0.0) continue;
     const Eigen::Vector3d fe = k.tension * k.n;
     f.col(e) += fe;
     f.col(e + 1) -= fe;
+    // The damping part of the tension, (T - elastic), does work -(T - elastic) ldot.
+    if (c_[e] != 0.0) power += (k.tension - ea_[e] / l0_[e] * (k.l - l0_[e])) * k.ldot;
   }
+  return power;
 }
 
 void BarElements::add_jacobian(const TetherState& s, NodeJacobian& j) const {
@@ -82,17 +88,8 @@ double BarElements::energy(const TetherState& s) const {
 }
 
 double BarElements::dissipated_power(const TetherState& s) const {
-  double p = 0.0;
-  for (std::size_t e = 0; e < l0_.size(); ++e) {
-    if (c_[e] == 0.0) continue;
-    const Kinematics k = kinematics(s, e);
-    if (k.tension == 0.0) continue;
-    // The damping part of the tension does work -c ldot^2; if the clamp at T = 0 is active
-    // the element carries nothing and dissipates nothing.
-    const double elastic = ea_[e] / l0_[e] * (k.l - l0_[e]);
-    p += (k.tension - elastic) * k.ldot;
-  }
-  return p;
+  Matrix3X scratch = Matrix3X::Zero(3, s.x.cols());
+  return add_forces_and_dissipation(s, scratch);
 }
 
 void BarElements::tensions(const TetherState& s, std::vector<double>& t) const {

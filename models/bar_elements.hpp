@@ -25,6 +25,7 @@ class BarElements : public ForceModel {
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
   double energy(const TetherState& s) const override;           // strain energy of taut elements
   double dissipated_power(const TetherState& s) const override;  // c ldot^2 while taut
+  double add_forces_and_dissipation(const TetherState& s, Matrix3X& f) const override;
 
   /// Cuts element e at time t [s]: from then on it carries nothing (both parts fly free).
   void cut(std::size_t e, double t_s);

@@ -70,6 +70,12 @@ class ForceModel {
   virtual double energy(const TetherState&) const { return 0.0; }
   /// Power this model removes from the tether's mechanical energy [W] (>= 0 for dampers).
   virtual double dissipated_power(const TetherState&) const { return 0.0; }
+  /// add_forces() and dissipated_power() together, as the right-hand side needs both; a
+  /// model whose two share their work (the bars' kinematics) does it in one pass.
+  virtual double add_forces_and_dissipation(const TetherState& s, Matrix3X& f) const {
+    add_forces(s, f);
+    return dissipated_power(s);
+  }
   /// Times at which this model's forces change abruptly (a gust's onset, a cut) [s]: the
   /// integrator stops there so that no step straddles them.
   virtual std::vector<double> event_times() const { return {}; }

@@ -7,16 +7,17 @@ namespace hawser {
 
 TetherSystem::TetherSystem(const TetherModel& model)
     : model_(model),
+      forces_(model.forces()),
       layout_(1, model.far_end ? model.nodes() - 2 : model.nodes() - 1),
+      diag_(model.mesh.node_mass),
+      inverse_mass_(model.mesh.node_mass.cwiseInverse()),
+      off_(Eigen::VectorXd::Zero(model.nodes())),
+      thomas_c_(model.nodes()),
       x_(3, model.nodes()),
       v_(3, model.nodes()),
       f_(3, model.nodes()),
       jac_(model.nodes()),
       newton_jac_(model.nodes()),
-      diag_(model.mesh.node_mass),
-      inverse_mass_(model.mesh.node_mass.cwiseInverse()),
-      off_(Eigen::VectorXd::Zero(model.nodes())),
-      thomas_c_(model.nodes()),
       gdx_(model.nodes()),
       dinv_(model.nodes()),
       lower_(model.nodes()),
@@ -44,7 +45,8 @@ void TetherSystem::rhs(double t, const double* y, double* ydot) {
   node_state(t, y, x_, v_);
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   f_.setZero();
-  for (const ForceModel* m : model_.forces()) m->add_forces(s, f_);
+  double dissipation = 0.0;
+  for (const ForceModel* m : forces_) dissipation += m->add_forces_and_dissipation(s, f_);
   assemble_mass(t);
   solve_mass(f_);  // f_ now holds the accelerations
   for (std::size_t k = layout_.first_free(); k <= layout_.last_free(); ++k)
@@ -58,8 +60,6 @@ void TetherSystem::rhs(double t, const double* y, double* ydot) {
   } else {
     ydot[layout_.drive_work()] = 0.0;
   }
-  double dissipation = 0.0;
-  for (const ForceModel* m : model_.forces()) dissipation += m->dissipated_power(s);
   ydot[layout_.dissipated_energy()] = dissipation;
   // Torque about z of the anchor's pull on node 1, -T0 n0 applied at x_1 (equal to its
   // moment at x_0, the force being along the element).
@@ -74,7 +74,7 @@ void TetherSystem::jacobian(double t, const double* y, const double*, const Band
   node_state(t, y, x_, v_);
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   jac_.set_zero();
-  for (const ForceModel* m : model_.forces()) m->add_jacobian(s, jac_);
+  for (const ForceModel* m : forces_) m->add_jacobian(s, jac_);
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
   // With climbers the exact J = M^-1 dF/dy reaches beyond the band; this band form divides
   // by the diagonal of M only. The integrator uses the exact structured Newton solver
@@ -154,7 +154,7 @@ void TetherSystem::newton_jacobian(double t, const double* y) {
   node_state(t, y, x_, v_);
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   newton_jac_.set_zero();
-  for (const ForceModel* m : model_.forces()) m->add_jacobian(s, newton_jac_);
+  for (const ForceModel* m : forces_) m->add_jacobian(s, newton_jac_);
 }
 
 void TetherSystem::newton_factor(double gamma) {

@@ -59,6 +59,7 @@ class TetherSystem : public OdeSystem {
 
  private:
   const TetherModel& model_;
+  std::vector<const ForceModel*> forces_;  // model_.forces(), gathered once
   StateLayout layout_;
   /// The mass matrix per axis (the same for x, y, z): lumped node masses plus each climber's
   /// m w w^T, so tridiagonal: diag_[k], off_[k] between k and k+1. Rebuilt for time t.
