@@ -1,5 +1,6 @@
 #include "models/bar_elements.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 #include <stdexcept>
@@ -7,11 +8,14 @@
 namespace hawser {
 
 BarElements::BarElements(std::vector<double> ea_n, std::vector<double> l0_m, std::vector<double> tau_s)
-    : ea_(std::move(ea_n)), l0_(std::move(l0_m)), c_(l0_.size()),
+    : ea_(std::move(ea_n)), l0_(std::move(l0_m)), k_(l0_.size()), c_(l0_.size()),
       cut_time_(l0_.size(), std::numeric_limits<double>::infinity()) {
   if (ea_.size() != l0_.size() || tau_s.size() != l0_.size())
     throw std::invalid_argument("BarElements: per-element arrays differ in length");
-  for (std::size_t e = 0; e < l0_.size(); ++e) c_[e] = tau_s[e] * ea_[e] / l0_[e];
+  for (std::size_t e = 0; e < l0_.size(); ++e) {
+    k_[e] = ea_[e] / l0_[e];
+    c_[e] = tau_s[e] * k_[e];
+  }
 }
 
 BarElements::Kinematics BarElements::kinematics(const TetherState& s, std::size_t e) const {
@@ -19,11 +23,11 @@ BarElements::Kinematics BarElements::kinematics(const TetherState& s, std::size_
   const Eigen::Vector3d d = s.x.col(e + 1) - s.x.col(e);
   k.w = s.v.col(e + 1) - s.v.col(e);
   k.l = d.norm();
-  k.n = d / k.l;
+  k.n = d * (1.0 / k.l);  // one division, not three
   k.ldot = k.n.dot(k.w);
   k.tension = 0.0;
   if (k.l > l0_[e] && s.t < cut_time_[e]) {
-    const double t = ea_[e] / l0_[e] * (k.l - l0_[e]) + c_[e] * k.ldot;
+    const double t = k_[e] * (k.l - l0_[e]) + c_[e] * k.ldot;
     if (t > 0.0) k.tension = t;
   }
   return k;
@@ -32,15 +36,35 @@ BarElements::Kinematics BarElements::kinematics(const TetherState& s, std::size_
 void BarElements::add_forces(const TetherState& s, Matrix3X& f) const { add_forces_and_dissipation(s, f); }
 
 double BarElements::add_forces_and_dissipation(const TetherState& s, Matrix3X& f) const {
+  // The hottest loop of a run: plain arrays, one division and one square root per element.
+  const double* x = s.x.data();
+  const double* v = s.v.data();
+  double* fp = f.data();
   double power = 0.0;
   for (std::size_t e = 0; e < l0_.size(); ++e) {
-    const Kinematics k = kinematics(s, e);
-    if (k.tension == 0.0) continue;
-    const Eigen::Vector3d fe = k.tension * k.n;
-    f.col(e) += fe;
-    f.col(e + 1) -= fe;
-    // The damping part of the tension, (T - elastic), does work -(T - elastic) ldot.
-    if (c_[e] != 0.0) power += (k.tension - ea_[e] / l0_[e] * (k.l - l0_[e])) * k.ldot;
+    const double* xa = x + 3 * e;
+    const double d0 = xa[3] - xa[0], d1 = xa[4] - xa[1], d2 = xa[5] - xa[2];
+    const double l = std::sqrt(d0 * d0 + d1 * d1 + d2 * d2);
+    const double stretch = l - l0_[e];
+    if (stretch <= 0.0 || s.t >= cut_time_[e]) continue;  // slack or cut: carries nothing
+    const double elastic = k_[e] * stretch;
+    double tension = elastic;
+    if (c_[e] != 0.0) {
+      const double* va = v + 3 * e;
+      const double ldot = (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l;
+      tension += c_[e] * ldot;
+      if (tension <= 0.0) continue;
+      // The damping part of the tension, (T - elastic), does work -(T - elastic) ldot.
+      power += (tension - elastic) * ldot;
+    }
+    const double q = tension / l;  // T n = (T / l) d
+    double* fa = fp + 3 * e;
+    fa[0] += q * d0;
+    fa[1] += q * d1;
+    fa[2] += q * d2;
+    fa[3] -= q * d0;
+    fa[4] -= q * d1;
+    fa[5] -= q * d2;
   }
   return power;
 }
@@ -93,8 +117,21 @@ double BarElements::dissipated_power(const TetherState& s) const {
 }
 
 void BarElements::tensions(const TetherState& s, std::vector<double>& t) const {
+  // The tension alone, without the element's direction: T = k (l - L0) + c (d . w) / l.
   t.resize(l0_.size());
-  for (std::size_t e = 0; e < l0_.size(); ++e) t[e] = kinematics(s, e).tension;
+  const double* x = s.x.data();
+  const double* v = s.v.data();
+  for (std::size_t e = 0; e < l0_.size(); ++e) {
+    const double* xa = x + 3 * e;
+    const double d0 = xa[3] - xa[0], d1 = xa[4] - xa[1], d2 = xa[5] - xa[2];
+    const double l = std::sqrt(d0 * d0 + d1 * d1 + d2 * d2);
+    double tension = k_[e] * (l - l0_[e]);
+    if (c_[e] != 0.0) {
+      const double* va = v + 3 * e;
+      tension += c_[e] * (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l;
+    }
+    t[e] = l > l0_[e] && s.t < cut_time_[e] && tension > 0.0 ? tension : 0.0;
+  }
 }
 
 }  // namespace hawser

@@ -47,7 +47,9 @@ class BarElements : public ForceModel {
     double l, ldot, tension;  // tension clamped at 0
   };
   Kinematics kinematics(const TetherState& s, std::size_t e) const;
-  std::vector<double> ea_, l0_, c_;  // c = tau * EA / L0 [N s/m]
+  std::vector<double> ea_, l0_;
+  std::vector<double> k_;            // k = EA / L0 [N/m]
+  std::vector<double> c_;            // c = tau * EA / L0 [N s/m]
   std::vector<double> cut_time_;     // [s]; +infinity: never cut
 };
 

@@ -42,7 +42,21 @@ double PlanetGravity::potential(const Eigen::Vector3d& r) const {
 }
 
 void PlanetGravity::add_forces(const TetherState& s, Matrix3X& f) const {
-  for (Eigen::Index i = 0; i < s.x.cols(); ++i) f.col(i) += s.mass[i] * acceleration(s.x.col(i));
+  if (p_ != 0.0) {
+    for (Eigen::Index i = 0; i < s.x.cols(); ++i) f.col(i) += s.mass[i] * acceleration(s.x.col(i));
+    return;
+  }
+  // Point mass alone, the common case, on plain arrays: m g = -(m GM / r^3) r.
+  const double* x = s.x.data();
+  double* fp = f.data();
+  for (Eigen::Index i = 0; i < s.x.cols(); ++i) {
+    const double* r = x + 3 * i;
+    const double r2 = r[0] * r[0] + r[1] * r[1] + r[2] * r[2];
+    const double q = s.mass[i] * gm_ / (r2 * std::sqrt(r2));
+    fp[3 * i] -= q * r[0];
+    fp[3 * i + 1] -= q * r[1];
+    fp[3 * i + 2] -= q * r[2];
+  }
 }
 
 void PlanetGravity::add_jacobian(const TetherState& s, NodeJacobian& j) const {

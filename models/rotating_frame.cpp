@@ -3,11 +3,14 @@
 namespace hawser {
 
 void RotatingFrame::add_forces(const TetherState& s, Matrix3X& f) const {
-  const double w2 = omega_ * omega_;
+  const double w2 = omega_ * omega_, w_twice = 2.0 * omega_;
+  const double* x = s.x.data();  // column-major, 3 values per node
+  const double* v = s.v.data();
+  const double* m = s.mass.data();
+  double* fp = f.data();
   for (Eigen::Index i = 0; i < s.x.cols(); ++i) {
-    const double m = s.mass[i];
-    f(0, i) += m * (w2 * s.x(0, i) + 2.0 * omega_ * s.v(1, i));
-    f(1, i) += m * (w2 * s.x(1, i) - 2.0 * omega_ * s.v(0, i));
+    fp[3 * i] += m[i] * (w2 * x[3 * i] + w_twice * v[3 * i + 1]);
+    fp[3 * i + 1] += m[i] * (w2 * x[3 * i + 1] - w_twice * v[3 * i]);
   }
 }
 

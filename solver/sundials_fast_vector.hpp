@@ -18,4 +18,12 @@ namespace hawser::sundials {
 /// N_VNewEmpty_Serial or N_VMake_Serial) with compiled ones, and enables the fused ones.
 void install_fast_serial_ops(N_Vector v);
 
+/// True if every entry of a serial N_Vector is finite (no NaN, no infinity).
+bool all_finite(N_Vector v);
+
+/// The integrators' error weights w_i = 1 / (rtol |y_i| + atol_i) in one pass (atol: one
+/// value if one_atol, else one per component). False if some rtol |y_i| + atol_i <= 0, as
+/// the library's own weight functions (cvEwtSetSV) report it.
+bool error_weights(N_Vector y, double rtol, const double* atol, bool one_atol, N_Vector w);
+
 }  // namespace hawser::sundials

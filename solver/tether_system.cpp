@@ -18,27 +18,36 @@ TetherSystem::TetherSystem(const TetherModel& model)
       f_(3, model.nodes()),
       jac_(model.nodes()),
       newton_jac_(model.nodes()),
-      gdx_(model.nodes()),
-      dinv_(model.nodes()),
-      lower_(model.nodes()),
-      upper_(model.nodes()),
-      work_(model.nodes()) {}
+      blocks_(model.nodes()),
+      work_(model.nodes()) {
+  for (double a : model.mesh.element_area) inverse_area_.push_back(1.0 / a);
+}
 
 void TetherSystem::node_state(double t, const double* y, Matrix3X& x, Matrix3X& v) const {
   const std::size_t n = model_.nodes();
-  x = model_.mesh.position;
-  v.setZero(3, n);
-  x.col(0) += model_.anchor->displacement(t);
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  x.resize(3, n);
+  v.resize(3, n);
+  const Matrix3X& x_eq = model_.mesh.position;
+  // Prescribed nodes (the anchor, a held far end) from their motions.
+  x.col(0) = x_eq.col(0) + model_.anchor->displacement(t);
   v.col(0) = model_.anchor->velocity(t);
   if (model_.far_end) {
-    x.col(n - 1) += model_.far_end->displacement(t);
+    x.col(n - 1) = x_eq.col(n - 1) + model_.far_end->displacement(t);
     v.col(n - 1) = model_.far_end->velocity(t);
   }
-  for (std::size_t k = layout_.first_free(); k <= layout_.last_free(); ++k)
+  // Free nodes: equilibrium plus displacement, and the velocity, in one pass on the
+  // column-major storage (3 values per node).
+  const double* xe = x_eq.data() + 3 * first;
+  double* xp = x.data() + 3 * first;
+  double* vp = v.data() + 3 * first;
+  for (std::size_t i = 0, free = last + 1 - first; i < free; ++i) {
+    const double* yk = y + StateLayout::kPerNode * i;
     for (int a = 0; a < 3; ++a) {
-      x(a, k) += y[layout_.u(k, a)];
-      v(a, k) = y[layout_.v(k, a)];
+      xp[3 * i + a] = xe[3 * i + a] + yk[a];
+      vp[3 * i + a] = yk[3 + a];
     }
+  }
 }
 
 void TetherSystem::rhs(double t, const double* y, double* ydot) {
@@ -49,11 +58,16 @@ void TetherSystem::rhs(double t, const double* y, double* ydot) {
   for (const ForceModel* m : forces_) dissipation += m->add_forces_and_dissipation(s, f_);
   assemble_mass(t);
   solve_mass(f_);  // f_ now holds the accelerations
-  for (std::size_t k = layout_.first_free(); k <= layout_.last_free(); ++k)
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  const double* vp = v_.data() + 3 * first;
+  const double* ap = f_.data() + 3 * first;
+  for (std::size_t i = 0, free = last + 1 - first; i < free; ++i) {
+    double* dk = ydot + StateLayout::kPerNode * i;
     for (int a = 0; a < 3; ++a) {
-      ydot[layout_.u(k, a)] = v_(a, k);
-      ydot[layout_.v(k, a)] = f_(a, k);
+      dk[a] = vp[3 * i + a];
+      dk[3 + a] = ap[3 * i + a];
     }
+  }
   if (model_.climbers) {
     const TetherState with_a{t, x_, v_, model_.mesh.node_mass, &f_};
     ydot[layout_.drive_work()] = model_.climbers->drive_power(with_a);
@@ -101,11 +115,10 @@ void TetherSystem::jacobian(double t, const double* y, const double*, const Band
 void TetherSystem::roots(double t, const double* y, double* g) {
   node_state(t, y, x_, v_);
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
-  std::vector<double> tension;
-  model_.bars->tensions(s, tension);
+  model_.bars->tensions(s, tension_);
   double worst = 0.0;
-  for (std::size_t e = 0; e < tension.size(); ++e)
-    worst = std::max(worst, tension[e] / model_.mesh.element_area[e]);
+  for (std::size_t e = 0; e < tension_.size(); ++e)
+    worst = std::max(worst, tension_[e] * inverse_area_[e]);
   g[0] = worst / model_.ultimate_strength_pa - 1.0;
 }
 
@@ -168,44 +181,60 @@ void TetherSystem::newton_factor(double gamma) {
     a.diagonal().array() += m;
     return a;
   };
-  // gamma dF_k/dx_j for j = k-1, k, k+1, kept side by side for the solves.
+  // Block Gaussian elimination: D_first = A_ff; L_k = A_{k,k-1} D_{k-1}^-1;
+  // E_{k-1} = D_{k-1}^-1 A_{k-1,k}; D_k = A_kk - A_{k,k-1} E_{k-1}.
   for (std::size_t k = first; k <= last; ++k) {
-    gdx_[k][0] = k > first ? Eigen::Matrix3d(gamma * newton_jac_.dx(k, k - 1)) : Eigen::Matrix3d::Zero();
-    gdx_[k][1] = gamma * newton_jac_.dx(k, k);
-    gdx_[k][2] = k < last ? Eigen::Matrix3d(gamma * newton_jac_.dx(k, k + 1)) : Eigen::Matrix3d::Zero();
+    NewtonBlocks& nb = blocks_[k];
+    nb.gdx_prev = k > first ? Eigen::Matrix3d(gamma * newton_jac_.dx(k, k - 1)) : Eigen::Matrix3d::Zero();
+    nb.gdx_self = gamma * newton_jac_.dx(k, k);
+    nb.gdx_next = k < last ? Eigen::Matrix3d(gamma * newton_jac_.dx(k, k + 1)) : Eigen::Matrix3d::Zero();
+    Eigen::Matrix3d d = block(k, k);
+    if (k > first) {
+      const Eigen::Matrix3d a_prev = block(k, k - 1);
+      NewtonBlocks& pb = blocks_[k - 1];
+      pb.e_next = pb.d_inv * block(k - 1, k);
+      nb.lower = a_prev * pb.d_inv;
+      d -= a_prev * pb.e_next;
+    } else {
+      nb.lower.setZero();
+    }
+    nb.d_inv = d.inverse();
   }
-  // D_first = A_ff; L_k = A_{k,k-1} D_{k-1}^-1; D_k = A_kk - L_k A_{k-1,k}.
-  dinv_[first] = block(first, first).inverse();
-  for (std::size_t k = first + 1; k <= last; ++k) {
-    upper_[k - 1] = block(k - 1, k);
-    lower_[k] = block(k, k - 1) * dinv_[k - 1];
-    dinv_[k] = (block(k, k) - lower_[k] * upper_[k - 1]).inverse();
-  }
+  blocks_[last].e_next.setZero();
 }
 
 void TetherSystem::newton_solve(double* b) const {
-  using Vec3 = Eigen::Map<Eigen::Vector3d>;
+  using Vec3 = Eigen::Vector3d;
+  using CMap = Eigen::Map<const Vec3>;
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
   const double gamma = newton_gamma_;
-  // Per free node k the state holds u_k then v_k (solver/state_layout.hpp): 6 values at 6 (k - first).
-  auto ru = [&](std::size_t k) { return Vec3(b + StateLayout::kPerNode * (k - first)); };
-  auto rv = [&](std::size_t k) { return Vec3(b + StateLayout::kPerNode * (k - first) + 3); };
-  // Right-hand side of the reduced system: (M r_v)_k + gamma sum_j dF_k/dx_j r_u,j.
+  constexpr std::size_t kStride = StateLayout::kPerNode;  // per free node: u_k (3) then v_k (3)
+  // Forward pass. The reduced right-hand side (M r_v)_k + gamma sum_j dF_k/dx_j r_u,j is
+  // formed node by node and eliminated at once: z_k = r_k - L_k z_{k-1}, y_k = D_k^-1 z_k.
+  // It reads b at k+1 before the back pass writes any of b.
+  Vec3 z_prev = Vec3::Zero();
   for (std::size_t k = first; k <= last; ++k) {
-    const auto& g = gdx_[k];
-    Eigen::Vector3d r = diag_[k] * rv(k) + g[1] * ru(k);
-    if (k > first) r.noalias() += off_[k - 1] * rv(k - 1) + g[0] * ru(k - 1);
-    if (k < last) r.noalias() += off_[k] * rv(k + 1) + g[2] * ru(k + 1);
-    work_[k] = r;
+    const NewtonBlocks& nb = blocks_[k];
+    const double* bk = b + kStride * (k - first);
+    Vec3 r = diag_[k] * CMap(bk + 3) + nb.gdx_self * CMap(bk);
+    if (k > first) r.noalias() += off_[k - 1] * CMap(bk - kStride + 3) + nb.gdx_prev * CMap(bk - kStride);
+    if (k < last) r.noalias() += off_[k] * CMap(bk + kStride + 3) + nb.gdx_next * CMap(bk + kStride);
+    r.noalias() -= nb.lower * z_prev;
+    z_prev = r;
+    work_[k].noalias() = nb.d_inv * r;
   }
-  // Forward elimination, then back substitution.
-  for (std::size_t k = first + 1; k <= last; ++k) work_[k] -= lower_[k] * work_[k - 1];
-  work_[last] = dinv_[last] * work_[last];
-  for (std::size_t k = last; k-- > first;) work_[k] = dinv_[k] * (work_[k] - upper_[k] * work_[k + 1]);
-  // dv from the reduced system, du = r_u + gamma dv; the quadrature rows are identity.
-  for (std::size_t k = first; k <= last; ++k) {
-    ru(k) += gamma * work_[k];
-    rv(k) = work_[k];
+  // Back pass: w_k = y_k - E_k w_{k+1}; then dv = w, du = r_u + gamma dv. The quadrature
+  // rows are identity and stay as they are.
+  Vec3 w_next = Vec3::Zero();
+  for (std::size_t k = last + 1; k-- > first;) {
+    Vec3 w = work_[k];
+    w.noalias() -= blocks_[k].e_next * w_next;
+    double* bk = b + kStride * (k - first);
+    for (int a = 0; a < 3; ++a) {
+      bk[a] += gamma * w[a];
+      bk[3 + a] = w[a];
+    }
+    w_next = w;
   }
 }
 
@@ -238,7 +267,9 @@ void TetherSystem::solve_mass(Matrix3X& f) const {
   for (std::size_t k = 0; k < first; ++k) f.col(k).setZero();
   for (std::size_t k = last + 1; k < static_cast<std::size_t>(f.cols()); ++k) f.col(k).setZero();
   if (touched_.empty()) {  // lumped masses only: a = f / m
-    for (std::size_t k = first; k <= last; ++k) f.col(k) *= inverse_mass_[k];
+    double* fp = f.data();
+    for (std::size_t k = first; k <= last; ++k)
+      for (int a = 0; a < 3; ++a) fp[3 * k + a] *= inverse_mass_[k];
     return;
   }
   std::size_t k = first;

@@ -76,9 +76,17 @@ class TetherSystem : public OdeSystem {
   NodeJacobian newton_jac_;                 // Jacobian of the last newton_jacobian()
   double newton_gamma_ = 0.0;
   double newton_t_ = 0.0;                   // time of the last newton_jacobian()
-  std::vector<std::array<Eigen::Matrix3d, 3>> gdx_;    // per free node: gamma dF_k/dx_{k-1,k,k+1}
-  std::vector<Eigen::Matrix3d> dinv_, lower_, upper_;  // per free node: D^-1, L, A_{k,k+1}
-  mutable std::vector<Eigen::Vector3d> work_;
+  /// The factored Newton matrix, per free node k, kept together for the two solve passes.
+  struct NewtonBlocks {
+    Eigen::Matrix3d gdx_prev, gdx_self, gdx_next;  // gamma dF_k/dx_{k-1}, dx_k, dx_{k+1} [N s/m]
+    Eigen::Matrix3d lower;                         // L_k = A_{k,k-1} D_{k-1}^-1
+    Eigen::Matrix3d d_inv;                         // D_k^-1
+    Eigen::Matrix3d e_next;                        // E_k = D_k^-1 A_{k,k+1}
+  };
+  std::vector<NewtonBlocks> blocks_;
+  std::vector<double> tension_;       // work array of roots() [N]
+  std::vector<double> inverse_area_;  // 1 / element area [1/m^2]
+  mutable std::vector<Eigen::Vector3d> work_;  // per free node, of newton_solve
 };
 
 }  // namespace hawser

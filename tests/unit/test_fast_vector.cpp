@@ -5,6 +5,7 @@
 #include <nvector/nvector_serial.h>
 #include <sundials/sundials_context.h>
 
+#include <limits>
 #include <random>
 #include <vector>
 
@@ -104,4 +105,49 @@ TEST_CASE("compiled vector operations agree with SUNDIALS' serial vector", "[int
   CHECK(clone->ops->nvlinearsum == f[0]->ops->nvlinearsum);
   CHECK(clone->ops->nvlinearsum != r[0]->ops->nvlinearsum);
   N_VDestroy(clone);
+}
+
+TEST_CASE("one-pass error weights equal the library's abs, linear sum, min and inverse",
+          "[integrator][vector]") {
+  // Reference: what cvEwtSetSV does with the library's own operations (SUNDIALS 6.4
+  // cvode.c): tempv = |y|; tempv = rtol tempv + atol; fail if min(tempv) <= 0; w = 1 / tempv.
+  Vectors v(6, 1001);
+  auto& r = v.ref;
+  auto& f = v.fast;
+  const double rtol = 1e-6;
+  N_VAbs(r[1], r[4]);
+  N_VAbs(r[1], f[4]);  // the atol vector: positive, in both
+  N_VAbs(r[0], r[5]);
+  N_VLinearSum(rtol, r[5], 1.0, r[4], r[5]);
+  REQUIRE(N_VMin(r[5]) > 0.0);
+  N_VInv(r[5], r[5]);
+  REQUIRE(hawser::sundials::error_weights(f[0], rtol, NV_DATA_S(f[4]), false, f[5]));
+  v.same(5);
+  // One atol for all components.
+  N_VAbs(r[0], r[5]);
+  N_VScale(rtol, r[5], r[5]);
+  N_VAddConst(r[5], 1e-3, r[5]);
+  N_VInv(r[5], r[5]);
+  const double one_atol = 1e-3;
+  REQUIRE(hawser::sundials::error_weights(f[0], rtol, &one_atol, true, f[5]));
+  v.same(5);
+  // A zero weight denominator is reported, as cvEwtSetSV does (y_i = 0 with atol_i = 0).
+  NV_Ith_S(f[0], 17) = 0.0;
+  NV_Ith_S(f[4], 17) = 0.0;
+  CHECK_FALSE(hawser::sundials::error_weights(f[0], rtol, NV_DATA_S(f[4]), false, f[5]));
+}
+
+TEST_CASE("the finiteness probe finds one NaN or infinity anywhere", "[integrator][vector]") {
+  Vectors v(6, 1001);
+  N_Vector x = v.fast[0];
+  CHECK(hawser::sundials::all_finite(x));
+  for (sunindextype at : {sunindextype(0), sunindextype(500), sunindextype(1000)}) {
+    const double keep = NV_Ith_S(x, at);
+    NV_Ith_S(x, at) = std::numeric_limits<double>::quiet_NaN();
+    CHECK_FALSE(hawser::sundials::all_finite(x));
+    NV_Ith_S(x, at) = -std::numeric_limits<double>::infinity();
+    CHECK_FALSE(hawser::sundials::all_finite(x));
+    NV_Ith_S(x, at) = keep;
+  }
+  CHECK(hawser::sundials::all_finite(x));
 }
