@@ -35,10 +35,16 @@ double AirDensity::at(double h) const {
 
 struct AerodynamicDrag::Element {
   Eigen::Vector3d n, w, a, east, e1;
-  Eigen::Matrix3d p, d;  // P = I - n n^T; projected-width tensor D [m]
   double l = 0.0, a_norm = 0.0, b_norm = 0.0, c = 0.0;  // c = rho Cd / 2 [kg/m^3]
-  double p_scale = 0.0;  // D = p_scale P (+ (W - t) e1 e1^T when `faces`) [m]
+  double p_scale = 0.0;  // D = p_scale P (+ face_extra e1 e1^T when `faces`) [m]
+  double face_extra = 0.0;  // W - t [m]
   bool faces = false;  // ribbon with a defined face normal e1
+  /// g = D w [m^2/s], without forming D.
+  Eigen::Vector3d width_times_wind() const {
+    Eigen::Vector3d g = p_scale * a;
+    if (faces) g += face_extra * e1.dot(w) * e1;
+    return g;
+  }
 };
 
 AerodynamicDrag::AerodynamicDrag(std::vector<DragSection> sections, double cd, AirDensity air,
@@ -69,19 +75,19 @@ bool AerodynamicDrag::element(const TetherState& s, std::size_t e, Element& el) 
   el.l = d.norm();
   if (!(el.l > 0.0)) return false;
   el.n = d / el.l;
-  el.p = Eigen::Matrix3d::Identity() - el.n * el.n.transpose();
   const Eigen::Matrix3d axes = frame.enu_axes(mid);
   const Eigen::Vector3d u = wind_->calm() ? Eigen::Vector3d::Zero() : Eigen::Vector3d(axes * wind_->velocity_enu(h, s.t));
   el.w = u - 0.5 * (s.v.col(i) + s.v.col(i + 1));
-  el.a = el.p * el.w;
+  el.a = el.w - el.n.dot(el.w) * el.n;  // P w
   el.a_norm = el.a.norm();
   el.c = 0.5 * rho * cd_;
   const DragSection& sec = sections_[e];
   el.p_scale = sec.thickness_m;
+  el.face_extra = sec.width_m - sec.thickness_m;
   el.faces = false;
   if (sec.width_m != sec.thickness_m) {
     el.east = axes.col(0);
-    const Eigen::Vector3d b = el.p * el.east;
+    const Eigen::Vector3d b = el.east - el.n.dot(el.east) * el.n;  // P east
     el.b_norm = b.norm();
     if (el.b_norm > 1e-12) {
       el.e1 = b / el.b_norm;
@@ -90,20 +96,22 @@ bool AerodynamicDrag::element(const TetherState& s, std::size_t e, Element& el) 
       el.p_scale = sec.width_m;  // an element lying east-west has no face normal: take the width
     }
   }
-  el.d = el.p_scale * el.p;
-  if (el.faces) el.d += (sec.width_m - sec.thickness_m) * el.e1 * el.e1.transpose();
   return true;
 }
 
 Eigen::Vector3d AerodynamicDrag::element_force(const TetherState& s, std::size_t e) const {
   Element el;
-  if (!element(s, e, el)) return Eigen::Vector3d::Zero();
-  return el.c * el.l * el.a_norm * (el.d * el.w);
+  if (!in_air(s, e, air_top()) || !element(s, e, el)) return Eigen::Vector3d::Zero();
+  return el.c * el.l * el.a_norm * el.width_times_wind();
 }
 
 void AerodynamicDrag::add_forces(const TetherState& s, Matrix3X& f) const {
+  const AltitudeFrame::Level top = air_top();
   for (std::size_t e = 0; e < sections_.size(); ++e) {
-    const Eigen::Vector3d half = 0.5 * element_force(s, e);
+    if (!in_air(s, e, top)) continue;
+    Element el;
+    if (!element(s, e, el)) continue;
+    const Eigen::Vector3d half = 0.5 * el.c * el.l * el.a_norm * el.width_times_wind();
     f.col(static_cast<Eigen::Index>(e)) += half;
     f.col(static_cast<Eigen::Index>(e + 1)) += half;
   }
@@ -111,23 +119,27 @@ void AerodynamicDrag::add_forces(const TetherState& s, Matrix3X& f) const {
 
 void AerodynamicDrag::add_jacobian(const TetherState& s, NodeJacobian& jac) const {
   const Eigen::Matrix3d id = Eigen::Matrix3d::Identity();
+  const AltitudeFrame::Level top = air_top();
   for (std::size_t e = 0; e < sections_.size(); ++e) {
+    if (!in_air(s, e, top)) continue;
     Element el;
     if (!element(s, e, el) || !(el.a_norm > 0.0)) continue;
-    const Eigen::Vector3d g = el.d * el.w;
+    const Eigen::Matrix3d p = id - el.n * el.n.transpose();
+    Eigen::Matrix3d d = el.p_scale * p;
+    if (el.faces) d += el.face_extra * el.e1 * el.e1.transpose();
+    const Eigen::Vector3d g = el.width_times_wind();
     // Velocities: dF_e/dw, and w falls by half of each end node's velocity.
-    const Eigen::Matrix3d df_dw = el.c * el.l * (g * el.a.transpose() / el.a_norm + el.a_norm * el.d);
+    const Eigen::Matrix3d df_dw = el.c * el.l * (g * el.a.transpose() / el.a_norm + el.a_norm * d);
     // Positions, through the element's length and direction.
     const double nw = el.n.dot(el.w);
-    const Eigen::Matrix3d da_dd = -(nw * id + el.n * el.w.transpose()) * el.p / el.l;
+    const Eigen::Matrix3d da_dd = -(nw * id + el.n * el.w.transpose()) * p / el.l;
     const Eigen::RowVector3d dan_dd = -nw * el.a.transpose() / (el.l * el.a_norm);
-    const DragSection& sec = sections_[e];
     Eigen::Matrix3d dg_dd = el.p_scale * da_dd;
     if (el.faces) {
       const double ne = el.n.dot(el.east);
-      const Eigen::Matrix3d db_dd = -(ne * id + el.n * el.east.transpose()) * el.p / el.l;
+      const Eigen::Matrix3d db_dd = -(ne * id + el.n * el.east.transpose()) * p / el.l;
       const Eigen::Matrix3d de1_dd = (id - el.e1 * el.e1.transpose()) * db_dd / el.b_norm;
-      dg_dd += (sec.width_m - sec.thickness_m) * (el.e1.dot(el.w) * id + el.e1 * el.w.transpose()) * de1_dd;
+      dg_dd += el.face_extra * (el.e1.dot(el.w) * id + el.e1 * el.w.transpose()) * de1_dd;
     }
     const Eigen::Matrix3d df_dd =
         el.c * (el.a_norm * g * el.n.transpose() + el.l * g * dan_dd + el.l * el.a_norm * dg_dd);

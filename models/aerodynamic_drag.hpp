@@ -102,6 +102,12 @@ class AerodynamicDrag : public ForceModel {
 
  private:
   struct Element;  // kinematics and air of one element
+  /// The top of the air, to leave out the many elements above it before any other work.
+  AltitudeFrame::Level air_top() const { return wind_->frame().level(air_.airless_above_m()); }
+  static bool in_air(const TetherState& s, std::size_t e, const AltitudeFrame::Level& top) {
+    const auto i = static_cast<Eigen::Index>(e);
+    return !top.reaches(0.5 * (s.x.col(i) + s.x.col(i + 1)));
+  }
   bool element(const TetherState& s, std::size_t e, Element& out) const;
   std::vector<DragSection> sections_;
   double cd_;

@@ -99,6 +99,7 @@ DrydenTurbulence::DrydenTurbulence(std::vector<DrydenStation> stations, std::uin
       throw std::invalid_argument("DrydenTurbulence: station altitudes must increase strictly");
   }
   samples_ = static_cast<std::size_t>(std::ceil(duration_s / dt_s)) + 1;
+  const std::size_t total = samples_ + kPad;  // and kPad samples after end_s(), for the spline
 
   series_.reserve(stations_.size());
   for (std::size_t st = 0; st < stations_.size(); ++st) {
@@ -121,8 +122,8 @@ DrydenTurbulence::DrydenTurbulence(std::vector<DrydenStation> stations, std::uin
     z << normal(), normal();
     xw << 0.5 * z(0), 0.5 * (z(0) + z(1));
 
-    Series out(3, static_cast<Eigen::Index>(samples_));
-    for (std::size_t k = 0; k < samples_; ++k) {
+    Series out(6, static_cast<Eigen::Index>(total));
+    for (std::size_t k = 0; k < total; ++k) {
       const auto col = static_cast<Eigen::Index>(k);
       out(0, col) = xu;
       out(1, col) = kLateralOutput * xv;
@@ -133,17 +134,43 @@ DrydenTurbulence::DrydenTurbulence(std::vector<DrydenStation> stations, std::uin
       z << normal(), normal();
       xw = step_w.phi * xw + step_w.chol * z;
     }
+    fit_spline(out);
     series_.push_back(std::move(out));
   }
 }
 
+void DrydenTurbulence::fit_spline(Series& s) {
+  // m_{j-1} + 4 m_j + m_{j+1} = y_{j+1} - 2 y_j + y_{j-1}, natural ends m = 0 (Thomas algorithm).
+  const Eigen::Index n = s.cols();
+  s.bottomRows<3>().setZero();
+  if (n < 3) return;
+  std::vector<double> c(static_cast<std::size_t>(n), 0.0);  // eliminated super-diagonal
+  for (Eigen::Index j = 1; j + 1 < n; ++j) {
+    const double denom = 4.0 - c[static_cast<std::size_t>(j - 1)];
+    c[static_cast<std::size_t>(j)] = 1.0 / denom;
+    const Eigen::Vector3d rhs = s.col(j + 1).head<3>() - 2.0 * s.col(j).head<3>() + s.col(j - 1).head<3>();
+    s.col(j).tail<3>() = (rhs - s.col(j - 1).tail<3>()) / denom;
+  }
+  for (Eigen::Index j = n - 3; j >= 1; --j)
+    s.col(j).tail<3>() -= c[static_cast<std::size_t>(j)] * s.col(j + 1).tail<3>();
+}
+
 Eigen::Vector3d DrydenTurbulence::unit_sample(std::size_t station, double t) const {
+  // y(t) = a y_k + b y_{k+1} + (a^3 - a) m_k + (b^3 - b) m_{k+1},  b = (t - t_k) / dt, a = 1 - b.
   const double x = t / dt_;
   const auto k = std::min(static_cast<std::size_t>(x), samples_ - 2);
-  const double f = x - static_cast<double>(k);
-  const Series& s = series_[station];
+  const double b = x - static_cast<double>(k), a = 1.0 - b;
   const auto c = static_cast<Eigen::Index>(k);
-  return (1.0 - f) * s.col(c) + f * s.col(c + 1);
+  const Series& s = series_[station];
+  return a * s.col(c).head<3>() + b * s.col(c + 1).head<3>() + (a * a * a - a) * s.col(c).tail<3>() +
+         (b * b * b - b) * s.col(c + 1).tail<3>();
+}
+
+Eigen::Vector3d DrydenTurbulence::held(std::size_t station, double t) const {
+  const DrydenStation& s = stations_[station];
+  const Eigen::Vector3d sigma(s.sigma_u_m_s, s.sigma_v_m_s, s.sigma_w_m_s);
+  if (sigma.isZero(0.0)) return Eigen::Vector3d::Zero();  // a station that ends the turbulence
+  return sigma.cwiseProduct(unit_sample(station, t));
 }
 
 Eigen::Vector3d DrydenTurbulence::velocity_uvw(double h, double t) const {
@@ -152,12 +179,10 @@ Eigen::Vector3d DrydenTurbulence::velocity_uvw(double h, double t) const {
                             std::to_string(end_s()) + "] s");
   auto sigmas = [](const DrydenStation& s) { return Eigen::Vector3d(s.sigma_u_m_s, s.sigma_v_m_s, s.sigma_w_m_s); };
   const std::size_t n = stations_.size();
-  if (h <= stations_.front().altitude_m) return sigmas(stations_.front()).cwiseProduct(unit_sample(0, t));
-  if (h >= stations_.back().altitude_m) return sigmas(stations_.back()).cwiseProduct(unit_sample(n - 1, t));
-  const auto hi = static_cast<std::size_t>(
-      std::upper_bound(stations_.begin(), stations_.end(), h,
-                       [](double a, const DrydenStation& s) { return a < s.altitude_m; }) -
-      stations_.begin());
+  if (h <= stations_.front().altitude_m) return held(0, t);
+  if (h >= stations_.back().altitude_m) return held(n - 1, t);
+  std::size_t hi = 1;
+  while (stations_[hi].altitude_m <= h) ++hi;  // a handful of stations: a linear scan
   const std::size_t lo = hi - 1;
   const double w = (h - stations_[lo].altitude_m) / (stations_[hi].altitude_m - stations_[lo].altitude_m);
   const Eigen::Vector3d sigma = (1.0 - w) * sigmas(stations_[lo]) + w * sigmas(stations_[hi]);

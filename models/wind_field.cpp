@@ -47,16 +47,7 @@ Eigen::Vector3d WindField::velocity_enu(double h, double t) const {
 }
 
 Eigen::Vector3d WindField::turbulence_uvw(double h, double t) const {
-  // Catmull-Rom through the samples t_j = j dt around t (the end samples repeated at the ends
-  // of the series; held beyond its end).
-  const double dt = turbulence_->sample_interval_s(), end = turbulence_->end_s();
-  const double tc = std::clamp(t, 0.0, end);
-  const auto last = static_cast<long>(turbulence_->samples()) - 1;
-  const long k = std::min(static_cast<long>(tc / dt), last - 1);
-  const double s = tc / dt - static_cast<double>(k);
-  auto at = [&](long j) { return turbulence_->velocity_uvw(h, static_cast<double>(std::clamp(j, 0L, last)) * dt); };
-  const Eigen::Vector3d p0 = at(k - 1), p1 = at(k), p2 = at(k + 1), p3 = at(k + 2);
-  return p1 + 0.5 * s * ((p2 - p0) + s * ((2.0 * p0 - 5.0 * p1 + 4.0 * p2 - p3) + s * (3.0 * (p1 - p2) + p3 - p0)));
+  return turbulence_->velocity_uvw(h, std::clamp(t, 0.0, turbulence_->end_s()));  // held past the end
 }
 
 Eigen::Vector3d WindField::velocity(const Eigen::Vector3d& r, double t) const {

@@ -16,14 +16,13 @@
 // Composition, in (east, north, up) at altitude h and time t:
 //   u = sum_k wind_k(h, t) + gusts(h, t) + to_enu(turbulence_uvw(h, t), downwind(turbulence direction))
 // and in the rotating frame u_rot = east * u_e + north * u_n + up * u_u.
-// Turbulence: a series pre-generated over the run (models/dryden_turbulence.hpp), read here at
-// its sample times t_j = j dt (where it is exact) and interpolated in time by the Catmull-Rom
-// cubic through the four samples around t (C1; Catmull & Rom 1974, the cardinal spline with
-// tension 1/2), not linearly as DrydenTurbulence itself does: a kink in the air's velocity at
-// every sample is a kink in the acceleration of the light lower nodes that follow it, and the
-// integrator's error test then cuts its step at each one (measured on scenarios/storm.yaml:
-// 102,111 steps and 5,317 error-test failures with linear interpolation, 72,609 and 8 with
-// this one). Past the series' end the last sample is held. The turbulence is
+// Turbulence: a series pre-generated over the run (models/dryden_turbulence.hpp), exact at its
+// sample times and a C2 cubic spline in time between them, held at its last value past its
+// end. (A spline, not linear interpolation: a kink in the air's velocity at every sample is a
+// kink in the acceleration of the light lower nodes, and the integrator's error test cut its
+// step at each one; measured on scenarios/storm.yaml: 102,111 steps and 5,317 error-test
+// failures with linear interpolation, 72,609 and 8 with a C1 Catmull-Rom cubic, 68,708 and 4
+// with the spline.) The turbulence is
 // continuous, so it adds no event times; wind windows and gust onsets/ends are events.
 #include <Eigen/Core>
 #include <memory>
@@ -41,6 +40,17 @@ class AltitudeFrame {
   static AltitudeFrame bench();
   /// Altitude h [m] of a point r [m].
   double altitude(const Eigen::Vector3d& r) const;
+  /// A level h [m] to test many points against cheaply (no square root): reaches(r) is
+  /// altitude(r) >= h.
+  struct Level {
+    bool bench;
+    double bound;  // bench: h; planet: (R + h)^2 [m^2], +infinity for h = +infinity
+    bool reaches(const Eigen::Vector3d& r) const { return bench ? r.x() >= bound : r.squaredNorm() >= bound; }
+  };
+  Level level(double altitude_m) const {
+    const double top = radius_m_ + altitude_m;
+    return {bench_, bench_ ? altitude_m : (top > 0.0 ? top * top : 0.0)};
+  }
   /// Columns east, north, up (unit vectors, rotating frame) at r.
   Eigen::Matrix3d enu_axes(const Eigen::Vector3d& r) const;
   bool is_bench() const { return bench_; }

@@ -41,7 +41,7 @@ struct TurbulenceSpec {
   bool given = false;
   std::uint64_t seed = 1;
   double from_direction_deg = 0.0;   // the along-wind (u) axis: the wind blows from here [deg]
-  double sample_interval_s = 0.0;    // 0: a tenth of the smallest L/V of the stations
+  double sample_interval_s = 0.0;    // 0: a fifth of the smallest L/V of the stations
   std::vector<TurbulenceStationSpec> stations;
   std::string where;
 };
