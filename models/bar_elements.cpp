@@ -116,6 +116,32 @@ double BarElements::dissipated_power(const TetherState& s) const {
   return add_forces_and_dissipation(s, scratch);
 }
 
+double BarElements::rupture_indicator(const TetherState& s, const std::vector<double>& capacity_n) const {
+  const double* x = s.x.data();
+  const double* v = s.v.data();
+  double worst = -1.0;  // every element slack or cut
+  for (std::size_t e = 0; e < l0_.size(); ++e) {
+    if (s.t >= cut_time_[e]) continue;
+    const double* xa = x + 3 * e;
+    const double d0 = xa[3] - xa[0], d1 = xa[4] - xa[1], d2 = xa[5] - xa[2];
+    const double l2 = d0 * d0 + d1 * d1 + d2 * d2;
+    double g;
+    if (c_[e] == 0.0) {
+      const double lc = l0_[e] + capacity_n[e] / k_[e];
+      g = l2 / (lc * lc) - 1.0;
+    } else {
+      const double* va = v + 3 * e;
+      const double l = std::sqrt(l2);
+      const double tension =
+          l > l0_[e] ? k_[e] * (l - l0_[e]) + c_[e] * (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l
+                     : 0.0;
+      g = std::max(tension, 0.0) / capacity_n[e] - 1.0;
+    }
+    worst = std::max(worst, g);
+  }
+  return worst;
+}
+
 void BarElements::tensions(const TetherState& s, std::vector<double>& t) const {
   // The tension alone, without the element's direction: T = k (l - L0) + c (d . w) / l.
   t.resize(l0_.size());

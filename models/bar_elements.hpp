@@ -34,6 +34,11 @@ class BarElements : public ForceModel {
 
   /// Tension of every element at state s [N] (0 when slack or cut).
   void tensions(const TetherState& s, std::vector<double>& t) const;
+  /// A continuous function of the state with the sign of max_e (T_e - capacity_e), for the
+  /// integrator's root finding (capacity_n: per element [N]). Undamped elements use
+  /// (l / l_c)^2 - 1 with l_c = L0 + capacity / k, the length at which T reaches the capacity:
+  /// the same sign, no square root. Damped ones use T / capacity - 1.
+  double rupture_indicator(const TetherState& s, const std::vector<double>& capacity_n) const;
   /// Tension of element e alone [N].
   double tension(const TetherState& s, std::size_t e) const { return kinematics(s, e).tension; }
   std::size_t size() const { return l0_.size(); }

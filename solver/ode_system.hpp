@@ -32,11 +32,12 @@ class OdeSystem {
   /// Optional structured Newton solver. An implicit integrator solves (I - gamma J) x = b at
   /// every Newton iteration; a system that knows its structure may do that itself, faster
   /// than a general band factorisation. newton_jacobian() evaluates and keeps J at (t, y);
-  /// newton_factor() factors I - gamma J for the kept J; newton_solve() overwrites b with x.
+  /// newton_factor() factors I - gamma J for the kept J; newton_solve() writes the solution x
+  /// of (I - gamma J) x = b (x may be b itself).
   virtual bool has_newton_solver() const { return false; }
   virtual void newton_jacobian(double /*t*/, const double* /*y*/) {}
   virtual void newton_factor(double /*gamma*/) {}
-  virtual void newton_solve(double* /*b*/) const {}
+  virtual void newton_solve(const double* /*b*/, double* /*x*/) const {}
   /// Root functions g_k(t, y), located by the integrator (a sign change stops it).
   virtual int num_roots() const { return 0; }
   virtual void roots(double /*t*/, const double* /*y*/, double* /*g*/) {}

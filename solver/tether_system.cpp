@@ -20,7 +20,7 @@ TetherSystem::TetherSystem(const TetherModel& model)
       newton_jac_(model.nodes()),
       blocks_(model.nodes()),
       work_(model.nodes()) {
-  for (double a : model.mesh.element_area) inverse_area_.push_back(1.0 / a);
+  for (double a : model.mesh.element_area) capacity_.push_back(a * model.ultimate_strength_pa);
 }
 
 void TetherSystem::node_state(double t, const double* y, Matrix3X& x, Matrix3X& v) const {
@@ -115,11 +115,7 @@ void TetherSystem::jacobian(double t, const double* y, const double*, const Band
 void TetherSystem::roots(double t, const double* y, double* g) {
   node_state(t, y, x_, v_);
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
-  model_.bars->tensions(s, tension_);
-  double worst = 0.0;
-  for (std::size_t e = 0; e < tension_.size(); ++e)
-    worst = std::max(worst, tension_[e] * inverse_area_[e]);
-  g[0] = worst / model_.ultimate_strength_pa - 1.0;
+  g[0] = model_.bars->rupture_indicator(s, capacity_);
 }
 
 TetherDiagnostics TetherSystem::diagnose(double t, const double* y) const {
@@ -203,7 +199,7 @@ void TetherSystem::newton_factor(double gamma) {
   blocks_[last].e_next.setZero();
 }
 
-void TetherSystem::newton_solve(double* b) const {
+void TetherSystem::newton_solve(const double* b, double* x) const {
   using Vec3 = Eigen::Vector3d;
   using CMap = Eigen::Map<const Vec3>;
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
@@ -223,19 +219,21 @@ void TetherSystem::newton_solve(double* b) const {
     z_prev = r;
     work_[k].noalias() = nb.d_inv * r;
   }
-  // Back pass: w_k = y_k - E_k w_{k+1}; then dv = w, du = r_u + gamma dv. The quadrature
-  // rows are identity and stay as they are.
+  // Back pass: w_k = y_k - E_k w_{k+1}; then dv = w, du = r_u + gamma dv. It reads b at k
+  // only, so x may be b. The quadrature rows are identity.
   Vec3 w_next = Vec3::Zero();
   for (std::size_t k = last + 1; k-- > first;) {
     Vec3 w = work_[k];
     w.noalias() -= blocks_[k].e_next * w_next;
-    double* bk = b + kStride * (k - first);
+    const double* bk = b + kStride * (k - first);
+    double* xk = x + kStride * (k - first);
     for (int a = 0; a < 3; ++a) {
-      bk[a] += gamma * w[a];
-      bk[3 + a] = w[a];
+      xk[a] = bk[a] + gamma * w[a];
+      xk[3 + a] = w[a];
     }
     w_next = w;
   }
+  for (std::size_t q = layout_.dissipated_energy(); q < layout_.size(); ++q) x[q] = b[q];
 }
 
 }  // namespace hawser

@@ -35,7 +35,7 @@ class TetherSystem : public OdeSystem {
   long half_bandwidth() const override { return StateLayout::kHalfBandwidth; }
   void rhs(double t, const double* y, double* ydot) override;
   void jacobian(double t, const double* y, const double* fy, const BandJacobian& j) override;
-  /// One root: the largest stress ratio minus 1 (an element reaching its ultimate strength).
+  /// One root: an element reaching its ultimate strength (BarElements::rupture_indicator).
   int num_roots() const override { return 1; }
   void roots(double t, const double* y, double* g) override;
 
@@ -49,7 +49,7 @@ class TetherSystem : public OdeSystem {
   bool has_newton_solver() const override { return true; }
   void newton_jacobian(double t, const double* y) override;
   void newton_factor(double gamma) override;
-  void newton_solve(double* b) const override;
+  void newton_solve(const double* b, double* x) const override;
 
   const StateLayout& layout() const { return layout_; }
   const TetherModel& model() const { return model_; }
@@ -84,8 +84,7 @@ class TetherSystem : public OdeSystem {
     Eigen::Matrix3d e_next;                        // E_k = D_k^-1 A_{k,k+1}
   };
   std::vector<NewtonBlocks> blocks_;
-  std::vector<double> tension_;       // work array of roots() [N]
-  std::vector<double> inverse_area_;  // 1 / element area [1/m^2]
+  std::vector<double> capacity_;      // per element: area x ultimate strength [N]
   mutable std::vector<Eigen::Vector3d> work_;  // per free node, of newton_solve
 };
 

@@ -217,8 +217,8 @@ int newton_setup(SUNLinearSolver ls, SUNMatrix a) {
 
 int newton_solve(SUNLinearSolver ls, SUNMatrix, N_Vector x, N_Vector b, realtype) {
   CallbackBridge& br = *newton_content(ls).bridge;
-  N_VScale(1.0, b, x);
-  return br.guard([&] { br.system.newton_solve(data(x)); }) == 0 ? SUNLS_SUCCESS : SUNLS_PACKAGE_FAIL_UNREC;
+  return br.guard([&] { br.system.newton_solve(data(b), data(x)); }) == 0 ? SUNLS_SUCCESS
+                                                                          : SUNLS_PACKAGE_FAIL_UNREC;
 }
 
 int newton_free(SUNLinearSolver ls) {

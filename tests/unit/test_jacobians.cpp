@@ -249,8 +249,8 @@ TEST_CASE("the structured Newton solver solves (I - gamma J) x = b", "[jacobian]
     sys.newton_factor(gamma);
     std::vector<double> b(n);
     for (auto& x : b) x = u(rng);
-    std::vector<double> x = b;
-    sys.newton_solve(x.data());
+    std::vector<double> x(n, 0.0);
+    sys.newton_solve(b.data(), x.data());
     double worst = 0.0, scale = 0.0;
     for (std::size_t r = 0; r < n; ++r) {
       double ax = x[r];
@@ -266,11 +266,11 @@ TEST_CASE("the structured Newton solver solves (I - gamma J) x = b", "[jacobian]
     // Refactoring for another gamma gives the same answer as a fresh Jacobian.
     sys.newton_factor(2 * gamma);
     std::vector<double> x1 = b;
-    sys.newton_solve(x1.data());
+    sys.newton_solve(x1.data(), x1.data());  // in place
     sys.newton_jacobian(0.0, y.data());
     sys.newton_factor(2 * gamma);
-    std::vector<double> x2 = b;
-    sys.newton_solve(x2.data());
+    std::vector<double> x2(n, 0.0);
+    sys.newton_solve(b.data(), x2.data());
     for (std::size_t r = 0; r < n; ++r) CHECK(x1[r] == Approx(x2[r]).epsilon(1e-12).margin(1e-300));
   }
 }
