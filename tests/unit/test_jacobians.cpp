@@ -126,6 +126,32 @@ TEST_CASE("bar elements carry tension only", "[jacobian]") {
   CHECK(fd_error(bars, s, false, 1e-2) < 1e-6);  // and the Jacobian knows it
 }
 
+TEST_CASE("bar elements: the rupture indicator changes sign where a tension reaches its capacity",
+          "[jacobian][rupture]") {
+  // Reference: the tensions themselves (T = k (l - L0) + c ldot, physics.md section 3). For
+  // each element in turn the capacity is set just below and just above its tension: the
+  // indicator must be positive and negative, undamped (squared lengths) and damped alike.
+  Scene s = scene(1e7, 1e5, 4);
+  std::vector<double> l0(5), ea(5, 6e6);
+  for (int e = 0; e < 5; ++e) l0[e] = (e == 3 ? 1.05 : 0.97) * (s.x.col(e + 1) - s.x.col(e)).norm();
+  for (double tau : {0.0, 50.0}) {
+    const BarElements bars(ea, l0, std::vector<double>(5, tau));
+    const TetherState st{0.0, s.x, s.v, s.m};
+    std::vector<double> t;
+    bars.tensions(st, t);
+    CHECK(t[3] == 0.0);  // slack
+    for (int e = 0; e < 5; ++e) {
+      if (t[e] == 0.0) continue;
+      std::vector<double> cap(5, 1e30);
+      cap[e] = 0.999 * t[e];
+      INFO("tau " << tau << ", element " << e << ", tension " << t[e]);
+      CHECK(bars.rupture_indicator(st, cap) > 0.0);
+      cap[e] = 1.001 * t[e];
+      CHECK(bars.rupture_indicator(st, cap) < 0.0);
+    }
+  }
+}
+
 TEST_CASE("gravity and rotating frame: analytic Jacobians match finite differences", "[jacobian]") {
   const Scene s = scene(1e7, 1e5, 3);
   const PlanetGravity point(earth(), false), j2(earth(), true);
