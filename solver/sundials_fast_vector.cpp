@@ -145,29 +145,45 @@ booleantype inv_test(N_Vector x, N_Vector z) {
   }
   return ok ? SUNTRUE : SUNFALSE;
 }
+// z = sum_k c_k x_k over up to four vectors at once (accumulate: z += ...), one pass over z.
+// z may be x[0] (SUNDIALS allows it): each z[i] is read before it is written.
+template <int M>
+inline __attribute__((always_inline)) void combine(const realtype* c, N_Vector* x, double* zd, sunindextype len,
+                                                   bool accumulate) {
+  const double* xk[M];
+  double ck[M];
+  for (int k = 0; k < M; ++k) {
+    xk[k] = d(x[k]);
+    ck[k] = c[k];
+  }
+  if (accumulate) {
+    for (sunindextype i = 0; i < len; ++i) {
+      double s = zd[i];
+      for (int k = 0; k < M; ++k) s += ck[k] * xk[k][i];
+      zd[i] = s;
+    }
+  } else {
+    for (sunindextype i = 0; i < len; ++i) {
+      double s = ck[0] * xk[0][i];
+      for (int k = 1; k < M; ++k) s += ck[k] * xk[k][i];
+      zd[i] = s;
+    }
+  }
+}
+
 HAWSER_VECTOR_CLONES int linear_combination(int nv, realtype* c, N_Vector* x, N_Vector z) {
+  // Four vectors per pass: ARKODE's stage sums combine up to a dozen vectors, and a pass per
+  // vector made them the largest cost after the Newton solve.
   const sunindextype len = n(z);
   double* zd = d(z);
-  if (nv == 1) {
-    scale(c[0], x[0], z);
-    return 0;
-  }
-  // z may alias x[0] (SUNDIALS allows it): then accumulate onto it.
-  int start = 0;
-  if (x[0] == z) {
-    if (c[0] != 1.0)
-      for (sunindextype i = 0; i < len; ++i) zd[i] *= c[0];
-    start = 1;
-  } else {
-    const double* x0 = d(x[0]);
-    const double c0 = c[0];
-    for (sunindextype i = 0; i < len; ++i) zd[i] = c0 * x0[i];
-    start = 1;
-  }
-  for (int k = start; k < nv; ++k) {
-    const double* xk = d(x[k]);
-    const double ck = c[k];
-    for (sunindextype i = 0; i < len; ++i) zd[i] += ck * xk[i];
+  for (int k = 0; k < nv; k += 4) {
+    const bool accumulate = k > 0;
+    switch (std::min(4, nv - k)) {
+      case 1: combine<1>(c + k, x + k, zd, len, accumulate); break;
+      case 2: combine<2>(c + k, x + k, zd, len, accumulate); break;
+      case 3: combine<3>(c + k, x + k, zd, len, accumulate); break;
+      default: combine<4>(c + k, x + k, zd, len, accumulate); break;
+    }
   }
   return 0;
 }

@@ -1,10 +1,14 @@
 #pragma once
 // Time integration of an OdeSystem y' = f(t, y) with SUNDIALS 6.4. The methods, by name:
-//   "bdf"   CVODE variable-order BDF (orders 1-5), Newton iteration, band LU linear solver
-//           on SUNBandMatrix storage, the system's analytic band Jacobian. For stiff runs.
+//   "bdf"   CVODE variable-order BDF (orders 1-5), Newton iteration with the system's
+//           structured solver, or band LU on SUNBandMatrix storage with its analytic band
+//           Jacobian. For stiff runs.
 //   "adams" CVODE Adams-Moulton (orders 1-12), fixed-point iteration, no Jacobian.
 //   "erk"   ARKODE ARKStep explicit Runge-Kutta, the default table of order 4 (or the
 //           order asked for by max_order), embedded error estimate, adaptive steps.
+//   "esdirk" ARKODE ARKStep implicit Runge-Kutta: the L-stable, stiffly accurate ESDIRK of
+//           order 3 of Kennedy & Carpenter (2003), Newton iteration with the system's
+//           structured solver when it has one. For smooth runs (free vibration, tides).
 // Every method uses the weighted RMS error norm with weights 1 / (rtol |y_i| + atol_i).
 // Output is by the integrator's own interpolation; events are stop times or roots.
 // No SUNDIALS type appears here: all SUNDIALS code lives in time_integrator.cpp.
@@ -16,7 +20,7 @@
 
 namespace hawser {
 
-enum class Method { bdf, adams, erk };
+enum class Method { bdf, adams, erk, esdirk };
 
 /// "bdf" | "adams" | "erk"; anything else throws InputError listing the valid names.
 Method parse_method(const std::string& name);

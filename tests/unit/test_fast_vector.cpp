@@ -90,6 +90,15 @@ TEST_CASE("compiled vector operations agree with SUNDIALS' serial vector", "[int
   N_VLinearCombination(2, c, rx, r[5]);
   N_VLinearCombination(2, c, fx, f[5]);
   v.same(5);
+  // Nine vectors (passes of four, four and one), in place on the first: ARKODE's stage sums.
+  realtype c9[9] = {0.5, -1.25, 2.0, 0.75, -0.3, 1.1, -2.2, 0.05, 3.0};
+  N_Vector r9[9] = {r[5], r[0], r[1], r[2], r[3], r[4], r[0], r[1], r[2]};
+  N_Vector f9[9] = {f[5], f[0], f[1], f[2], f[3], f[4], f[0], f[1], f[2]};
+  for (int nv : {4, 5, 9}) {
+    N_VLinearCombination(nv, c9, r9, r[5]);
+    N_VLinearCombination(nv, c9, f9, f[5]);
+    v.same(5);
+  }
   N_Vector ry[2] = {r[1], r[2]}, fy[2] = {f[1], f[2]}, rz[2] = {r[4], r[5]}, fz[2] = {f[4], f[5]};
   N_VScaleAddMulti(2, c, r[0], ry, rz);
   N_VScaleAddMulti(2, c, f[0], fy, fz);

@@ -22,7 +22,7 @@ namespace {
 
 constexpr double pi = 3.14159265358979323846;
 const double no_stop = std::numeric_limits<double>::infinity();
-const Method all_methods[] = {Method::bdf, Method::adams, Method::erk};
+const Method all_methods[] = {Method::bdf, Method::adams, Method::erk, Method::esdirk};
 
 /// Free response of x'' + b x' + K x = 0 with x(0) = x0, x'(0) = v0: a sum of exp(s t)
 /// over the two roots s of s^2 + b s + K = 0 (the characteristic-equation solution of
