@@ -35,7 +35,7 @@ struct NullSink : OutputSink {
 
 int main(int argc, char** argv) {
   if (argc < 3) {
-    std::fprintf(stderr, "usage: bench_tether p1|p2 N [bdf|adams|erk] [rtol] [max order]\n");
+    std::fprintf(stderr, "usage: bench_tether p1|p2 N [bdf|adams|erk|esdirk] [rtol] [max order]\n");
     return 2;
   }
   const std::string which = argv[1];
