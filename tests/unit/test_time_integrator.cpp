@@ -463,6 +463,8 @@ TEST_CASE("methods by name and option checks", "[integrator]") {
   CHECK(parse_method("bdf") == Method::bdf);
   CHECK(parse_method("adams") == Method::adams);
   CHECK(parse_method("erk") == Method::erk);
+  CHECK(parse_method("esdirk") == Method::esdirk);
+  CHECK(method_name(Method::esdirk) == "esdirk");
   try {
     parse_method("rk4");
     FAIL("no InputError");
@@ -471,6 +473,7 @@ TEST_CASE("methods by name and option checks", "[integrator]") {
     CHECK(what.find("bdf") != std::string::npos);
     CHECK(what.find("adams") != std::string::npos);
     CHECK(what.find("erk") != std::string::npos);
+    CHECK(what.find("esdirk") != std::string::npos);
   }
   Oscillator osc;
   double y[2] = {1.0, 0.0};
@@ -484,6 +487,11 @@ TEST_CASE("methods by name and option checks", "[integrator]") {
   o = options(Method::bdf, 1e-6, 1e-9);
   o.max_order = 6;  // BDF is stable only up to order 5
   CHECK_THROWS_AS(TimeIntegrator(osc, 0.0, y, o), InputError);
+  o = options(Method::esdirk, 1e-6, 1e-9);
+  o.max_order = 4;  // one table only, of order 3
+  CHECK_THROWS_AS(TimeIntegrator(osc, 0.0, y, o), InputError);
+  o.max_order = 3;
+  CHECK_NOTHROW(TimeIntegrator(osc, 0.0, y, o));
   o.atol.clear();  // an absolute tolerance has the state's units: no default
   o.max_order = 0;
   CHECK_THROWS_AS(TimeIntegrator(osc, 0.0, y, o), InputError);
@@ -512,6 +520,18 @@ TEST_CASE("options reach the solver", "[integrator]") {
     TimeIntegrator integrator(osc, 0.0, y, o);
     integrator.advance(1.0, no_stop, y);
     CHECK(integrator.stats().last_order == 5);
+    CHECK(y[0] == Approx(std::cos(1.0)).margin(1e-6));
+  }
+  SECTION("esdirk: order 3, Newton iterations with the system's Jacobian") {
+    // ARK3(2)4L[2]SA has order 3 (Kennedy & Carpenter, Appl. Numer. Math. 44, 2003).
+    IntegratorOptions o = options(Method::esdirk, 1e-8, 1e-11);
+    TimeIntegrator integrator(osc, 0.0, y, o);
+    integrator.advance(1.0, no_stop, y);
+    const SolverStats s = integrator.stats();
+    INFO(s.to_string());
+    CHECK(s.last_order == 3);
+    CHECK(s.jac_evals > 0);
+    CHECK(s.nonlinear_iterations >= s.steps);  // at least one per step (three implicit stages)
     CHECK(y[0] == Approx(std::cos(1.0)).margin(1e-6));
   }
   SECTION("a tiny step budget counts per advance() call, not per run") {
