@@ -25,11 +25,7 @@ BarElements::Kinematics BarElements::kinematics(const TetherState& s, std::size_
   k.l = d.norm();
   k.n = d * (1.0 / k.l);  // one division, not three
   k.ldot = k.n.dot(k.w);
-  k.tension = 0.0;
-  if (k.l > l0_[e] && s.t < cut_time_[e]) {
-    const double t = k_[e] * (k.l - l0_[e]) + c_[e] * k.ldot;
-    if (t > 0.0) k.tension = t;
-  }
+  k.tension = tension_law(e, k.l, k.ldot, s.t);
   return k;
 }
 
@@ -45,18 +41,15 @@ double BarElements::add_forces_and_dissipation(const TetherState& s, Matrix3X& f
     const double* xa = x + 3 * e;
     const double d0 = xa[3] - xa[0], d1 = xa[4] - xa[1], d2 = xa[5] - xa[2];
     const double l = std::sqrt(d0 * d0 + d1 * d1 + d2 * d2);
-    const double stretch = l - l0_[e];
-    if (stretch <= 0.0 || s.t >= cut_time_[e]) continue;  // slack or cut: carries nothing
-    const double elastic = k_[e] * stretch;
-    double tension = elastic;
+    double ldot = 0.0;
     if (c_[e] != 0.0) {
       const double* va = v + 3 * e;
-      const double ldot = (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l;
-      tension += c_[e] * ldot;
-      if (tension <= 0.0) continue;
-      // The damping part of the tension, (T - elastic), does work -(T - elastic) ldot.
-      power += (tension - elastic) * ldot;
+      ldot = (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l;
     }
+    const double tension = tension_law(e, l, ldot, s.t);
+    if (tension == 0.0) continue;  // slack or cut: carries nothing
+    // The damping part of the tension, (T - elastic), does work -(T - elastic) ldot.
+    if (c_[e] != 0.0) power += (tension - k_[e] * (l - l0_[e])) * ldot;
     const double q = tension / l;  // T n = (T / l) d
     double* fa = fp + 3 * e;
     fa[0] += q * d0;
@@ -132,10 +125,8 @@ double BarElements::rupture_indicator(const TetherState& s, const std::vector<do
     } else {
       const double* va = v + 3 * e;
       const double l = std::sqrt(l2);
-      const double tension =
-          l > l0_[e] ? k_[e] * (l - l0_[e]) + c_[e] * (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l
-                     : 0.0;
-      g = std::max(tension, 0.0) / capacity_n[e] - 1.0;
+      const double ldot = (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l;
+      g = tension_law(e, l, ldot, s.t) / capacity_n[e] - 1.0;
     }
     worst = std::max(worst, g);
   }
@@ -143,7 +134,7 @@ double BarElements::rupture_indicator(const TetherState& s, const std::vector<do
 }
 
 void BarElements::tensions(const TetherState& s, std::vector<double>& t) const {
-  // The tension alone, without the element's direction: T = k (l - L0) + c (d . w) / l.
+  // The tension alone, without the element's direction.
   t.resize(l0_.size());
   const double* x = s.x.data();
   const double* v = s.v.data();
@@ -151,12 +142,12 @@ void BarElements::tensions(const TetherState& s, std::vector<double>& t) const {
     const double* xa = x + 3 * e;
     const double d0 = xa[3] - xa[0], d1 = xa[4] - xa[1], d2 = xa[5] - xa[2];
     const double l = std::sqrt(d0 * d0 + d1 * d1 + d2 * d2);
-    double tension = k_[e] * (l - l0_[e]);
+    double ldot = 0.0;
     if (c_[e] != 0.0) {
       const double* va = v + 3 * e;
-      tension += c_[e] * (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l;
+      ldot = (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l;
     }
-    t[e] = l > l0_[e] && s.t < cut_time_[e] && tension > 0.0 ? tension : 0.0;
+    t[e] = tension_law(e, l, ldot, s.t);
   }
 }
 

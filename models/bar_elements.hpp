@@ -52,6 +52,13 @@ class BarElements : public ForceModel {
     double l, ldot, tension;  // tension clamped at 0
   };
   Kinematics kinematics(const TetherState& s, std::size_t e) const;
+  /// The element's law, in one place: T = k (l - L0) + c ldot if l > L0, the element is not
+  /// cut at time t and that is > 0; else 0 [N].
+  double tension_law(std::size_t e, double l_m, double ldot_m_s, double t_s) const {
+    if (!(l_m > l0_[e]) || t_s >= cut_time_[e]) return 0.0;
+    const double tension = k_[e] * (l_m - l0_[e]) + c_[e] * ldot_m_s;
+    return tension > 0.0 ? tension : 0.0;
+  }
   std::vector<double> ea_, l0_;
   std::vector<double> k_;            // k = EA / L0 [N/m]
   std::vector<double> c_;            // c = tau * EA / L0 [N s/m]

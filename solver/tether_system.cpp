@@ -207,7 +207,7 @@ void TetherSystem::newton_solve(const double* b, double* x) const {
   constexpr std::size_t kStride = StateLayout::kPerNode;  // per free node: u_k (3) then v_k (3)
   // Forward pass. The reduced right-hand side (M r_v)_k + gamma sum_j dF_k/dx_j r_u,j is
   // formed node by node and eliminated at once: z_k = r_k - L_k z_{k-1}, y_k = D_k^-1 z_k.
-  // It reads b at k+1 before the back pass writes any of b.
+  // It only reads b; the back pass writes x (which may be b) after it.
   Vec3 z_prev = Vec3::Zero();
   for (std::size_t k = first; k <= last; ++k) {
     const NewtonBlocks& nb = blocks_[k];

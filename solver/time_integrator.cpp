@@ -415,15 +415,16 @@ class ArkodeStepper final : public Stepper {
  public:
   ArkodeStepper(const IntegratorOptions& o, double t0, N_Vector y0,
                 CallbackBridge& bridge, SUNContext ctx)
-      : implicit_(o.method == Method::esdirk), roots_(bridge.system.num_roots()), n_(N_VGetLength(y0)) {
-    const bool implicit = implicit_;
+      : implicit_(o.method == Method::esdirk),
+        roots_(bridge.system.num_roots()),
+        n_(N_VGetLength(y0)) {
     // erk: fi == NULL, purely explicit ARK, i.e. an explicit Runge-Kutta method; esdirk:
     // fe == NULL, purely implicit (a diagonally implicit Runge-Kutta method).
-    mem_.reset(sd::check_created(implicit ? ARKStepCreate(nullptr, rhs_callback, t0, y0, ctx)
+    mem_.reset(sd::check_created(implicit_ ? ARKStepCreate(nullptr, rhs_callback, t0, y0, ctx)
                                           : ARKStepCreate(rhs_callback, nullptr, t0, y0, ctx),
                                  "ARKStepCreate"));
     void* m = mem_.get();
-    if (implicit) {
+    if (implicit_) {
       // The implicit table of Kennedy & Carpenter's ARK3(2)4L[2]SA (Appl. Numer. Math. 44,
       // 2003): an ESDIRK of order 3 with an embedded order-2 error estimate, L-stable and
       // stiffly accurate, so the tether's undamped high modes are damped rather than
@@ -432,13 +433,15 @@ class ArkodeStepper final : public Stepper {
       if (bridge.system.has_newton_solver()) {
         matrix_.reset(make_stand_in_matrix(ctx));
         linear_.reset(make_newton_solver(bridge, ctx));
-        sd::check_arkode(ARKStepSetLinearSolver(m, linear_.get(), matrix_.get()), "ARKStepSetLinearSolver");
+        sd::check_arkode(ARKStepSetLinearSolver(m, linear_.get(), matrix_.get()),
+                         "ARKStepSetLinearSolver");
         sd::check_arkode(ARKStepSetJacFn(m, system_jacobian_callback), "ARKStepSetJacFn");
       } else {
         const long b = std::min<long>(bridge.system.half_bandwidth(), n_ - 1);
         matrix_.reset(sd::check_created(SUNBandMatrix(n_, b, b, ctx), "SUNBandMatrix"));
         linear_.reset(sd::check_created(SUNLinSol_Band(y0, matrix_.get(), ctx), "SUNLinSol_Band"));
-        sd::check_arkode(ARKStepSetLinearSolver(m, linear_.get(), matrix_.get()), "ARKStepSetLinearSolver");
+        sd::check_arkode(ARKStepSetLinearSolver(m, linear_.get(), matrix_.get()),
+                         "ARKStepSetLinearSolver");
         sd::check_arkode(ARKStepSetJacFn(m, jacobian_callback), "ARKStepSetJacFn");
       }
       sd::check_arkode(ARKStepSetTableNum(m, ARKODE_ARK324L2SA_DIRK_4_2_3, ARKODE_ERK_NONE),
@@ -460,7 +463,8 @@ class ArkodeStepper final : public Stepper {
     if (o.max_step_s > 0) sd::check_arkode(ARKStepSetMaxStep(m, o.max_step_s), "ARKStepSetMaxStep");
     if (o.initial_step_s > 0)
       sd::check_arkode(ARKStepSetInitStep(m, o.initial_step_s), "ARKStepSetInitStep");
-    if (o.max_order > 0 && !implicit) sd::check_arkode(ARKStepSetOrder(m, o.max_order), "ARKStepSetOrder");
+    if (o.max_order > 0 && !implicit_)  // esdirk has one table (validate() allows only 3)
+      sd::check_arkode(ARKStepSetOrder(m, o.max_order), "ARKStepSetOrder");
     if (roots_ > 0)
       sd::check_arkode(ARKStepRootInit(m, roots_, root_callback), "ARKStepRootInit");
   }
@@ -481,7 +485,9 @@ class ArkodeStepper final : public Stepper {
     });
   }
   void reinit(double t_s, N_Vector y) override {
-    sd::check_arkode(ARKStepReInit(mem_.get(), implicit_ ? nullptr : rhs_callback, implicit_ ? rhs_callback : nullptr, t_s, y), "ARKStepReInit");
+    ARKRhsFn explicit_part = implicit_ ? nullptr : rhs_callback;
+    ARKRhsFn implicit_part = implicit_ ? rhs_callback : nullptr;
+    sd::check_arkode(ARKStepReInit(mem_.get(), explicit_part, implicit_part, t_s, y), "ARKStepReInit");
   }
   double internal_time() override {
     realtype t = 0;
@@ -505,7 +511,8 @@ class ArkodeStepper final : public Stepper {
     s.last_order = explicit_table ? explicit_table->q : (implicit_table ? implicit_table->q : 0);
     s.rhs_evals += implicit_evals;
     if (implicit_) {
-      sd::check_arkode(ARKStepGetNumNonlinSolvIters(m, &s.nonlinear_iterations), "ARKStepGetNumNonlinSolvIters");
+      sd::check_arkode(ARKStepGetNumNonlinSolvIters(m, &s.nonlinear_iterations),
+                       "ARKStepGetNumNonlinSolvIters");
       sd::check_arkode(ARKStepGetNumNonlinSolvConvFails(m, &s.nonlinear_failures),
                        "ARKStepGetNumNonlinSolvConvFails");
       sd::check_arkode(ARKStepGetNumLinSolvSetups(m, &s.linear_setups), "ARKStepGetNumLinSolvSetups");
@@ -520,7 +527,7 @@ class ArkodeStepper final : public Stepper {
   const char* evolve_call() const override { return "ARKStepEvolve"; }
 
  private:
-  bool implicit_;
+  bool implicit_;  // esdirk (fi given), else erk (fe given)
   int roots_;
   long n_;  // state size
   sd::Matrix matrix_;
