@@ -18,7 +18,7 @@ int main(int argc, char** argv) {
   bool json = false;
   auto add_common = [&](CLI::App* sub) {
     sub->add_option("SCENARIO", opt.scenario, "scenario file (YAML)")->required();
-    sub->add_option("--set", opt.overrides, "override a scenario key: key.path=value (repeatable)")
+    sub->add_option("--set", opt.overrides, "override a scenario key: key.path=value, list items by index as climbers[0].mass=30t (repeatable)")
         ->type_name("KEY=VALUE");
   };
   CLI::App* check = app.add_subcommand("check", "validate a scenario; list every problem with file:line:column and key");

@@ -312,26 +312,62 @@ class Validator {
   std::map<std::string, YAML::Node> resolved_;  // display path of a named entry -> its table node
 };
 
-/// Sets `value` at dotted `path` in `root`, creating maps as needed. Returns false if a
-/// non-map node is in the way.
-bool set_path(YAML::Node root, const std::string& path, const YAML::Node& value) {
-  std::vector<std::string> parts;
+/// Sets `value` at `path` in `root`: dotted keys, each optionally followed by list indices
+/// ("climbers[0].mass", "environment.gusts[1].onset"), creating maps as needed but never
+/// list items. Returns "" or why it could not.
+std::string set_path(YAML::Node root, const std::string& path, const YAML::Node& value) {
+  struct Step {
+    std::string key;          // a map key, or "" for a list index
+    std::size_t index = 0;
+  };
+  std::vector<Step> steps;
   std::stringstream ss(path);
-  for (std::string p; std::getline(ss, p, '.');) parts.push_back(p);
-  YAML::Node cur = root;
-  for (std::size_t i = 0; i + 1 < parts.size(); ++i) {
-    if (cur[parts[i]] && !cur[parts[i]].IsMap()) {
-      // A named table entry (material: steel) becomes an inline map only by giving all keys;
-      // refuse rather than guess.
-      return false;
-    }
-    cur.reset(cur[parts[i]]);
-    if (!cur.IsDefined() || cur.IsNull()) {
-      // (yaml-cpp creates the child on assignment below)
+  for (std::string part; std::getline(ss, part, '.');) {
+    const std::size_t open = part.find('[');
+    const std::string key = part.substr(0, open);
+    if (key.empty()) return "empty key in the path";
+    steps.push_back({key, 0});
+    for (std::size_t at = open; at != std::string::npos; at = part.find('[', at)) {
+      const std::size_t close = part.find(']', at);
+      const std::string digits = close == std::string::npos ? "" : part.substr(at + 1, close - at - 1);
+      if (digits.empty() || digits.find_first_not_of("0123456789") != std::string::npos)
+        return "a list index is written [0], [1], ... after the key";
+      steps.push_back({"", static_cast<std::size_t>(std::stoul(digits))});
+      at = close + 1;
+      if (at < part.size() && part[at] != '[') return "unexpected text after ']'";
     }
   }
-  cur[parts.back()] = value;
-  return true;
+  YAML::Node cur = root;
+  std::string walked;
+  for (std::size_t i = 0; i < steps.size(); ++i) {
+    const Step& st = steps[i];
+    const bool last = i + 1 == steps.size();
+    if (st.key.empty()) {
+      if (!cur.IsSequence())
+        return walked + " is not a list";
+      if (st.index >= cur.size())
+        return walked + " has " + std::to_string(cur.size()) + " items; there is no [" + std::to_string(st.index) + "]";
+      walked += "[" + std::to_string(st.index) + "]";
+      if (last) {
+        cur[st.index] = value;
+        return "";
+      }
+      cur.reset(cur[st.index]);
+      continue;
+    }
+    if (cur.IsDefined() && !cur.IsNull() && !cur.IsMap())
+      // A named table entry (material: steel) becomes an inline map only by giving all keys;
+      // refuse rather than guess.
+      return "cannot set below a value that is not a mapping (a named planet or material must be given "
+             "inline to change one property)";
+    walked += (walked.empty() ? "" : ".") + st.key;
+    if (last) {
+      cur[st.key] = value;
+      return "";
+    }
+    cur.reset(cur[st.key]);
+  }
+  return "";
 }
 
 }  // namespace
@@ -390,8 +426,8 @@ ReadScenario ScenarioReader::read_text(const std::string& text, std::vector<Prob
         root[head] = inline_entry;
       }
     }
-    if (!set_path(root, path, v)) {
-      problems.push_back({"--set " + o, path, "cannot set below a value that is not a mapping (a named planet or material must be given inline to change one property)"});
+    if (const std::string why = set_path(root, path, v); !why.empty()) {
+      problems.push_back({"--set " + o, path, why});
       continue;
     }
     origin[path] = value;
