@@ -31,8 +31,8 @@
 // all terms vanish with |a| (F is quadratic in w).
 // Drag is an external force doing work from the wind: energy() and dissipated_power() stay 0
 // (it is neither stored nor dissipated tether energy).
-// Climbers: a climber's own drag (its frontal area and Cd) would use air_at() at the climber's
-// position; that seam is here, the climber model does not exist yet.
+// Climbers: a climber's own drag (its Cd A, key climbers[].drag) takes the air at its place
+// from air_at() (models/climber_load.cpp).
 #include <memory>
 #include <vector>
 

@@ -6,7 +6,8 @@
 namespace hawser {
 
 ClimberLoad::ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_nodes,
-                         std::vector<const ForceModel*> point_models, const Matrix3X& reference_position)
+                         std::vector<std::shared_ptr<const ForceModel>> point_models,
+                         const Matrix3X& reference_position)
     : climbers_(std::move(climbers)),
       s_nodes_(std::move(s_nodes)),
       point_models_(std::move(point_models)),
@@ -51,22 +52,39 @@ ClimberLoad::PointState ClimberLoad::point(const TetherState& s, const Attachmen
           (1 - at.xi) * s.v.col(e) + at.xi * s.v.col(e + 1) + at.xi_dot * d};
 }
 
-Eigen::Vector3d ClimberLoad::point_force(double t, const PointState& p, double mass, Eigen::Matrix3d* dr,
-                                         Eigen::Matrix3d* dv) const {
+Eigen::Vector3d ClimberLoad::body_force(double t, const PointState& p, double mass, Eigen::Matrix3d* dr,
+                                        Eigen::Matrix3d* dv) const {
   Matrix3X x(3, 1), v(3, 1), f = Matrix3X::Zero(3, 1);
   x.col(0) = p.r;
   v.col(0) = p.v;
   Eigen::VectorXd m(1);
   m[0] = mass;
   const TetherState one{t, x, v, m};
-  for (const ForceModel* pm : point_models_) pm->add_forces(one, f);
+  for (const auto& pm : point_models_) pm->add_forces(one, f);
   if (dr || dv) {
     NodeJacobian j(1);
-    for (const ForceModel* pm : point_models_) pm->add_jacobian(one, j);
+    for (const auto& pm : point_models_) pm->add_jacobian(one, j);
     if (dr) *dr = j.dx(0, 0);
     if (dv) *dv = j.dv(0, 0);
   }
   return f.col(0);
+}
+
+Eigen::Vector3d ClimberLoad::point_force(double t, const PointState& p, const Attachment& at, Eigen::Matrix3d* dr,
+                                         Eigen::Matrix3d* dv) const {
+  Eigen::Vector3d f = body_force(t, p, at.mass_kg, dr, dv);
+  const double cd_area = climbers_[at.climber].drag_area_m2;
+  if (!air_ || cd_area <= 0.0) return f;
+  // Drag of the air on the climber, a bluff body: F = (1/2) rho Cd A |w| w with the relative
+  // wind w = u(r_c, t) - v_c (the drag equation; Hoerner, Fluid-Dynamic Drag, 1965, recalled
+  // from memory). dF/dv_c = -(1/2) rho Cd A (|w| I + w w^T / |w|); as for the elements, the
+  // change of rho and u with position is left out of the Jacobian.
+  const AerodynamicDrag::Air air = air_->air_at(p.r, t);
+  const Eigen::Vector3d w = air.wind_m_s - p.v;
+  const double speed = w.norm(), c = 0.5 * air.density_kg_m3 * cd_area;
+  f += c * speed * w;
+  if (dv && speed > 0.0) *dv -= c * (speed * Eigen::Matrix3d::Identity() + w * w.transpose() / speed);
+  return f;
 }
 
 void ClimberLoad::add_forces(const TetherState& s, Matrix3X& f) const {
@@ -75,7 +93,7 @@ void ClimberLoad::add_forces(const TetherState& s, Matrix3X& f) const {
     const PointState p = point(s, at);
     const Eigen::Vector3d a_rel =
         2 * at.xi_dot * (s.v.col(e + 1) - s.v.col(e)) + at.xi_ddot * (s.x.col(e + 1) - s.x.col(e));
-    const Eigen::Vector3d g = point_force(s.t, p, at.mass_kg, nullptr, nullptr) - at.mass_kg * a_rel;
+    const Eigen::Vector3d g = point_force(s.t, p, at, nullptr, nullptr) - at.mass_kg * a_rel;
     f.col(e) += (1 - at.xi) * g;
     f.col(e + 1) += at.xi * g;
   }
@@ -87,7 +105,7 @@ void ClimberLoad::add_jacobian(const TetherState& s, NodeJacobian& j) const {
     const std::size_t e = at.element;
     const PointState p = point(s, at);
     Eigen::Matrix3d fr, fv;
-    point_force(s.t, p, at.mass_kg, &fr, &fv);
+    point_force(s.t, p, at, &fr, &fv);
     const double xi = at.xi, xd = at.xi_dot, xdd = at.xi_ddot, m = at.mass_kg;
     // dG/d(node) for G = F_c(r_c, v_c) - m a_rel.
     const Eigen::Matrix3d gx_e = (1 - xi) * fr - xd * fv + m * xdd * I;
@@ -121,7 +139,7 @@ Eigen::Vector3d ClimberLoad::reaction(const TetherState& s, const Attachment& at
   const Matrix3X& a = *s.a;
   const Eigen::Vector3d a_rel = 2 * at.xi_dot * (s.v.col(e + 1) - s.v.col(e)) + at.xi_ddot * (s.x.col(e + 1) - s.x.col(e));
   const Eigen::Vector3d a_c = (1 - at.xi) * a.col(e) + at.xi * a.col(e + 1) + a_rel;
-  return at.mass_kg * a_c - point_force(s.t, point(s, at), at.mass_kg, nullptr, nullptr);
+  return at.mass_kg * a_c - point_force(s.t, point(s, at), at, nullptr, nullptr);
 }
 
 double ClimberLoad::drive_power(const TetherState& s) const {
@@ -140,7 +158,7 @@ double ClimberLoad::climber_energy(const TetherState& s) const {
     Eigen::VectorXd m(1);
     m[0] = at.mass_kg;
     const TetherState one{s.t, x, v, m};
-    for (const ForceModel* pm : point_models_) e += pm->energy(one);
+    for (const auto& pm : point_models_) e += pm->energy(one);
     e += 0.5 * at.mass_kg * p.v.squaredNorm();
   }
   return e;
@@ -201,7 +219,7 @@ void ClimberLoad::sample_outputs(const TetherState& s, const std::vector<std::si
     const Eigen::Vector3d reaction_n = reaction(s, at);
     // Coriolis force on the climber: -2 m Omega x v_c, from the point models' velocity terms.
     Eigen::Matrix3d fv;
-    point_force(s.t, p, at.mass_kg, nullptr, &fv);
+    body_force(s.t, p, at.mass_kg, nullptr, &fv);
     const Eigen::Vector3d coriolis = fv * p.v;
     const Eigen::Vector3d on_line = (1 - at.xi) * reference_.col(e) + at.xi * reference_.col(e + 1);
     const Eigen::Vector3d offset = p.r - on_line;

@@ -16,6 +16,7 @@
 #include <string>
 #include <vector>
 
+#include "models/aerodynamic_drag.hpp"
 #include "models/bar_elements.hpp"
 #include "models/climber_profile.hpp"
 #include "models/force_model.hpp"
@@ -31,6 +32,7 @@ struct Climber {
   ClimberEnd at_end = ClimberEnd::park;
   double end_mass_kg = 0.0;  // drop_payload: the mass that stays on
   bool sudden = false;       // not in the starting equilibrium: its weight arrives at its start time
+  double drag_area_m2 = 0.0; // drag coefficient times frontal area, Cd A [m^2]; 0: no drag
 };
 
 /// Where a climber is at time t, for the mass matrix and the forces.
@@ -45,11 +47,13 @@ class ClimberLoad : public ForceModel {
  public:
   /// s_nodes: material coordinate of every node [m]; point_models: the forces that act on a
   /// point mass (gravity, frame, tides), evaluated at the climber.
-  ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_nodes, std::vector<const ForceModel*> point_models,
-              const Matrix3X& reference_position);
+  ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_nodes,
+              std::vector<std::shared_ptr<const ForceModel>> point_models, const Matrix3X& reference_position);
   std::string name() const override { return "climbers"; }
   /// The bars, for the tensions next to each climber in the outputs.
   void set_bars(const BarElements* bars) { bars_ = bars; }
+  /// The air (density and wind) for the drag of climbers with a drag area.
+  void set_air(std::shared_ptr<const AerodynamicDrag> air) { air_ = std::move(air); }
 
   /// In parked mode (for the starting equilibrium) every climber that is not a sudden load
   /// sits at its start, at rest.
@@ -76,14 +80,19 @@ class ClimberLoad : public ForceModel {
     Eigen::Vector3d r, v;
   };
   PointState point(const TetherState& s, const Attachment& at) const;
-  /// F_c and its derivatives with respect to r_c, v_c (from the point models).
-  Eigen::Vector3d point_force(double t, const PointState& p, double mass, Eigen::Matrix3d* dr, Eigen::Matrix3d* dv) const;
+  /// The point models' force on a point of this mass, and its derivatives.
+  Eigen::Vector3d body_force(double t, const PointState& p, double mass, Eigen::Matrix3d* dr, Eigen::Matrix3d* dv) const;
+  /// F_c and its derivatives with respect to r_c, v_c: the point models, and the drag of
+  /// the air on a climber with a drag area.
+  Eigen::Vector3d point_force(double t, const PointState& p, const Attachment& at, Eigen::Matrix3d* dr,
+                              Eigen::Matrix3d* dv) const;
   /// The tether's push R on the climber (m a_c - F_c); needs s.a.
   Eigen::Vector3d reaction(const TetherState& s, const Attachment& at) const;
 
   std::vector<Climber> climbers_;
   std::vector<double> s_nodes_;
-  std::vector<const ForceModel*> point_models_;
+  std::vector<std::shared_ptr<const ForceModel>> point_models_;
+  std::shared_ptr<const AerodynamicDrag> air_;  // null: no air
   Matrix3X reference_;
   bool parked_ = false;
   const BarElements* bars_ = nullptr;

@@ -62,6 +62,10 @@ class ForceModel {
  public:
   virtual ~ForceModel() = default;
   virtual std::string name() const = 0;
+  /// True for a force on each node from that node's own position, velocity and mass alone
+  /// (gravity, the frame's forces, tides): such a model also acts on a climber, evaluated on
+  /// it as on a point mass (models/climber_load.hpp).
+  virtual bool acts_on_point_masses() const { return false; }
   /// F(:, i) += force on node i [N].
   virtual void add_forces(const TetherState& s, Matrix3X& f) const = 0;
   /// Adds this model's derivatives of the forces.

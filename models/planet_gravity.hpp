@@ -18,6 +18,7 @@ class PlanetGravity : public ForceModel {
  public:
   PlanetGravity(const Planet& planet, bool include_j2);
   std::string name() const override { return include_j2_ ? "gravity (point mass + J2)" : "gravity (point mass)"; }
+  bool acts_on_point_masses() const override { return true; }
   void add_forces(const TetherState& s, Matrix3X& f) const override;
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
   double energy(const TetherState& s) const override;  // sum m U(r)

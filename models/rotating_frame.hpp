@@ -13,6 +13,7 @@ class RotatingFrame : public ForceModel {
  public:
   explicit RotatingFrame(double omega_rad_s) : omega_(omega_rad_s) {}
   std::string name() const override { return "rotating frame (centrifugal, Coriolis)"; }
+  bool acts_on_point_masses() const override { return true; }
   void add_forces(const TetherState& s, Matrix3X& f) const override;
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
   double energy(const TetherState& s) const override;  // centrifugal potential

@@ -17,6 +17,7 @@ class TidalForce : public ForceModel {
  public:
   explicit TidalForce(ThirdBodyTide tide) : tide_(std::move(tide)) {}
   std::string name() const override { return "tides"; }
+  bool acts_on_point_masses() const override { return true; }
   void add_forces(const TetherState& s, Matrix3X& f) const override;
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
   /// /environment/tidal_acceleration (K,3) m/s^2 at the recorded nodes.

@@ -9,6 +9,7 @@ class UniformGravity : public ForceModel {
  public:
   UniformGravity(double g_m_s2, const Eigen::Vector3d& direction) : g_(g_m_s2), e_(direction.normalized()) {}
   std::string name() const override { return "uniform gravity"; }
+  bool acts_on_point_masses() const override { return true; }
   void add_forces(const TetherState& s, Matrix3X& f) const override {
     for (Eigen::Index i = 0; i < s.x.cols(); ++i) f.col(i) += s.mass[i] * g_ * e_;
   }

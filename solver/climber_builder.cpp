@@ -151,6 +151,18 @@ void check_overlaps(const std::vector<Climber>& cs, const std::vector<std::strin
     }
 }
 
+/// Cd A [m^2] of the climber or schedule at `p` (0 without drag); drag needs air.
+double drag_area(const Scenario& sc, const std::string& p, std::vector<Problem>& problems) {
+  const ScenarioValues& v = sc.values;
+  if (!v.has(p + ".drag")) return 0.0;
+  if (!sc.environment.any_air()) {
+    problems.push_back({v.where(p + ".drag"), p + ".drag",
+                        "drag on a climber needs air: give environment.atmosphere (and winds if any)"});
+    return 0.0;
+  }
+  return v.quantity(p + ".drag.area") * v.quantity(p + ".drag.cd");
+}
+
 }  // namespace
 
 std::vector<Climber> read_climbers(const Scenario& sc, const std::vector<double>& reference,
@@ -170,6 +182,7 @@ std::vector<Climber> read_climbers(const Scenario& sc, const std::vector<double>
     c.mass_kg = v.quantity(p + ".mass");
     c.sudden = v.boolean(p + ".sudden_load");
     c.at_end = r.end_action(p, &c.end_mass_kg);
+    c.drag_area_m2 = drag_area(sc, p, problems);
     if (!r.profile(p, v.quantity(p + ".start_time"), &c.profile)) continue;
     for (const auto& other : out)
       if (other.name == c.name) problems.push_back({v.where(p + ".name"), p + ".name", "name '" + c.name + "' used twice"});
@@ -181,6 +194,7 @@ std::vector<Climber> read_climbers(const Scenario& sc, const std::vector<double>
     const std::string p = "schedules[" + std::to_string(i) + "]";
     if (!r.on_tether(p + ".from") || !r.on_tether(p + ".to") || !r.direction_ok(p)) continue;
     const auto& masses = v.at(p + ".masses").vector;
+    double schedule_drag = 0.0;
     for (double m : masses)
       if (m <= 0.0) problems.push_back({v.where(p + ".masses"), p + ".masses", "masses must be greater than 0 kg"});
     for (long long k = 0; k < v.integer(p + ".count"); ++k) {
@@ -188,6 +202,8 @@ std::vector<Climber> read_climbers(const Scenario& sc, const std::vector<double>
       c.name = v.text(p + ".name") + "_" + std::to_string(k + 1);
       c.mass_kg = masses[static_cast<std::size_t>(k) % masses.size()];
       c.at_end = r.end_action(p, &c.end_mass_kg);
+      if (k == 0) schedule_drag = drag_area(sc, p, problems);
+      c.drag_area_m2 = schedule_drag;
       c.sudden = true;  // departures join a running tether: each arrives with its weight at its start
       const double start = v.quantity(p + ".first_departure") + k * v.quantity(p + ".every");
       if (!r.profile(p, start, &c.profile)) break;

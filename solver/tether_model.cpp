@@ -1,5 +1,6 @@
 #include "solver/tether_model.hpp"
 
+#include "models/aerodynamic_drag.hpp"
 #include "models/planet_gravity.hpp"
 #include "models/rotating_frame.hpp"
 #include "models/taper_design.hpp"
@@ -36,6 +37,13 @@ TetherModel build_model(const Scenario& sc) {
   m.anchor = std::make_unique<FixedPoint>();
   std::vector<const ForceModel*> body;
   for (const auto& b : m.body) body.push_back(b.get());
+  // What a climber feels as a point mass: the body models that act on point masses.
+  auto point_models = [&m] {
+    std::vector<std::shared_ptr<const ForceModel>> out;
+    for (const auto& b : m.body)
+      if (b->acts_on_point_masses()) out.push_back(b);
+    return out;
+  };
   // Climbers parked at their start points load the starting equilibrium (except sudden
   // loads); positions are first taken on the reference geometry, where the fraction of an
   // element is the same as in material coordinates.
@@ -44,7 +52,7 @@ TetherModel build_model(const Scenario& sc) {
   std::unique_ptr<ClimberLoad> parked;
   const std::vector<Climber> on_reference = read_climbers(sc, reference, reference);
   if (!on_reference.empty()) {
-    parked = std::make_unique<ClimberLoad>(on_reference, reference, body, m.mesh.position);
+    parked = std::make_unique<ClimberLoad>(on_reference, reference, point_models(), m.mesh.position);
     parked->set_parked(true);
     with_parked.push_back(parked.get());
   }
@@ -58,9 +66,12 @@ TetherModel build_model(const Scenario& sc) {
   add_environment(sc, m);  // drag, tides, cuts, strikes (solver/environment_builder.hpp)
   m.ultimate_strength_pa = sc.material.ultimate_strength_pa;
   if (!on_reference.empty()) {
+    // In the run the climbers also feel the tides and, when they have a drag area, the air.
     m.climbers = std::make_unique<ClimberLoad>(read_climbers(sc, reference, m.equilibrium.s0_m), m.equilibrium.s0_m,
-                                               body, m.mesh.position);
+                                               point_models(), m.mesh.position);
     m.climbers->set_bars(m.bars.get());
+    for (const auto& b : m.body)
+      if (auto air = std::dynamic_pointer_cast<const AerodynamicDrag>(b)) m.climbers->set_air(air);
   }
   return m;
 }

@@ -27,7 +27,8 @@ struct TetherModel {
   Mesh mesh;
   Equilibrium equilibrium;
   std::unique_ptr<BarElements> bars;
-  std::vector<std::unique_ptr<ForceModel>> body;  // gravity, frame, ... (not the bars)
+  std::vector<std::shared_ptr<ForceModel>> body;  // gravity, frame, ... (not the bars); shared
+                                                 // with the climbers, which feel some of them
   std::unique_ptr<PrescribedMotion> anchor;       // node 0
   std::unique_ptr<PrescribedMotion> far_end;      // node N, or null when free
   double ultimate_strength_pa = 0.0;

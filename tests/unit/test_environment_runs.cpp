@@ -671,3 +671,134 @@ TEST_CASE("the storm and cut scenarios load and run, shortened", "[environment][
   for (std::size_t e = 0; e < cut.elements(); ++e) cuts += std::isfinite(cut.bars->cut_time(e)) ? 1 : 0;
   CHECK(cuts == 1);
 }
+
+// ---- drag and tides on climbers ---------------------------------------------------------
+
+namespace {
+/// A 100 m cable hanging in the uniform-field bench, free at the bottom, with a climber of
+/// mass M parked at the bottom end (it starts long after the run) in a uniform horizontal wind.
+/// The cable's own drag is switched off (cd 0): only the climber feels the wind.
+std::string hanging_with_climber(double climber_kg, double area_m2, double cd, double wind_m_s, double rho_air,
+                                 bool with_drag, const std::string& method = "bdf") {
+  std::ostringstream y;
+  y.precision(17);
+  y << "material: {density: 1000, youngs_modulus: 1e11, ultimate_strength: 1e15, damping_time: 1e-3, "
+    << "kind: invented}\n"
+    << "field: {kind: uniform, gravity: 9.81, cable_length: 100 m, cable_area: 1e-4, far_end: free}\n"
+    << "mesh: {elements: 20}\n"
+    << "simulation: {duration: 300, output_interval: 10, method: " << method
+    << ", rtol: 1e-9, atol_position: 1e-9, atol_velocity: 1e-9}\n"
+    << "climbers:\n  - {name: box, mass: " << climber_kg << ", from: 100 m, to: 50 m, direction: down, "
+    << "cruise_speed: 1 m/s, acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, start_time: 1e6";
+  if (with_drag) y << ", drag: {area: " << area_m2 << ", cd: " << cd << "}";
+  y << "}\n"
+    << "environment:\n  atmosphere: uniform\n  air_density: " << rho_air << "\n  drag: {cd: 0}\n"
+    << "  winds:\n    - kind: table\n      table: [{altitude: 0, speed: " << wind_m_s
+    << ", from_direction: 270 deg}]\n";
+  return y.str();
+}
+}  // namespace
+
+TEST_CASE("a climber in the wind: its drag leans the cable above it to the statics' angles", "[environment][climber]") {
+  // The climber's drag D = (1/2) rho Cd A u^2 (the drag equation; Hoerner, Fluid-Dynamic Drag,
+  // 1965, recalled from memory) pushes the bottom end downwind. In the steady state each element
+  // carries everything below it (statics of the free body below a cut, common practice): the
+  // horizontal D and the weight g (M + the lumped node masses below), so it leans by
+  //   tan(theta_e) = D / (g (M + sum of node masses below e)).
+  // The wind arrives at t = 0 as a step; the swing of the climber dies out under its own drag,
+  // but the cable's lateral string modes above it have no damping (its own drag is off), so
+  // the shape is the mean over the last 100 s, sampled at 20 Hz (their periods are 2.6 s and
+  // shorter).
+  const double M = 50.0, area = 0.5, cd = 1.1, u = 8.0, rho_air = 1.2, g = 9.81;
+  const double D = 0.5 * rho_air * cd * area * u * u;
+  std::string text = hanging_with_climber(M, area, cd, u, rho_air, true);
+  text.replace(text.find("output_interval: 10"), std::string("output_interval: 10").size(), "output_interval: 0.05");
+  const Scenario sc = load_scenario_text(text, "climber_wind.yaml", {});
+  testing::MemorySink sink;
+  TetherModel model;
+  const RunSummary s = run(sc, sink, model);
+  REQUIRE(s.status == "complete");
+  Matrix3X mean = Matrix3X::Zero(3, sink.x.back().cols());
+  int count = 0;
+  for (std::size_t k = 0; k < sink.t.size(); ++k)
+    if (sink.t[k] >= 200.0) {
+      mean += sink.x[k];
+      ++count;
+    }
+  mean /= count;
+  const std::size_t n = model.nodes() - 1;  // elements
+  double worst = 0.0, mass_below = M;
+  for (std::size_t e = n; e-- > 0;) {
+    mass_below += model.mesh.node_mass[static_cast<Eigen::Index>(e + 1)];
+    const Eigen::Vector3d de = mean.col(static_cast<Eigen::Index>(e + 1)) - mean.col(static_cast<Eigen::Index>(e));
+    const double lean = std::atan2(de.y(), de.x());  // from the hanging direction (+x) toward +y (east)
+    const double expected = std::atan(D / (g * mass_below));
+    worst = std::max(worst, std::abs(lean / expected - 1.0));
+  }
+  INFO("drag " << D << " N; worst relative error of an element's lean " << worst << "; steps " << s.stats.steps);
+  CHECK(worst < 2e-3);
+  // Without the climber's drag the cable hangs straight down.
+  const Scenario calm = load_scenario_text(hanging_with_climber(M, area, cd, u, rho_air, false), "no_drag.yaml", {});
+  testing::MemorySink sink2;
+  TetherModel model2;
+  REQUIRE(run(calm, sink2, model2).status == "complete");
+  CHECK(sink2.x.back().row(1).cwiseAbs().maxCoeff() < 1e-9);
+}
+
+TEST_CASE("the climber's drag Jacobian matches finite differences", "[environment][climber][jacobian]") {
+  // Uniform air and wind on the bench: the analytic terms must match central differences of the
+  // climber model's forces (style.md habit 11), at a state with the climber moving (t = 20 s of
+  // a descent starting at t = 0) and the nodes moving too.
+  std::string text = hanging_with_climber(50.0, 0.5, 1.1, 8.0, 1.2, true);
+  text.replace(text.find("start_time: 1e6"), std::string("start_time: 1e6").size(), "start_time: 0");
+  const Scenario sc = load_scenario_text(text, "climber_jac.yaml", {});
+  const TetherModel model = build_model(sc);
+  REQUIRE(model.climbers);
+  const double t = 20.0;
+  REQUIRE(model.climbers->attachments(t).at(0).xi_dot != 0.0);
+  std::mt19937 rng(9);
+  std::uniform_real_distribution<double> r(-1.0, 1.0);
+  Matrix3X x = model.mesh.position, v = Matrix3X::Zero(3, model.mesh.position.cols());
+  for (Eigen::Index i = 1; i < x.cols(); ++i) {
+    x.col(i) += Eigen::Vector3d(0.01 * r(rng), 0.3 * r(rng), 0.2 * r(rng));
+    v.col(i) << 0.5 * r(rng), 2.0 * r(rng), 1.5 * r(rng);
+  }
+  const double ev = fd_error(*model.climbers, t, x, v, model.mesh.node_mass, true, 1e-6);
+  INFO("relative error of dF/dv " << ev);
+  CHECK(ev < 1e-6);
+}
+
+TEST_CASE("tides act on climbers as on nodes", "[environment][climber][tide]") {
+  // The climbers feel every model that acts on point masses (models/force_model.hpp): with
+  // tides on, a parked climber's share of force on its nodes grows by w_i m a_tide(r_c), the
+  // tidal acceleration at its place (models/third_body_tide.hpp, itself checked against the
+  // direct difference of two gravity terms above).
+  const std::vector<std::string> base{"mesh.elements=40", "initial.displacements=[]",
+                                      "climbers[0].start_time=1e7"};
+  std::vector<std::string> with_tides = base;
+  with_tides.push_back("environment.tides.moon=true");
+  with_tides.push_back("environment.tides.sun=true");
+  const Scenario plain = load_scenario(kDemo, base), tidal = load_scenario(kDemo, with_tides);
+  const TetherModel a = build_model(plain), b = build_model(tidal);
+  const TidalForce* tide = find_model<TidalForce>(b);
+  REQUIRE(tide);
+  const double t = 5.0 * 3600.0;
+  const Attachment at = b.climbers->attachments(t).at(0);
+  const Matrix3X& x = b.mesh.position;
+  const Matrix3X v = Matrix3X::Zero(3, x.cols());
+  Matrix3X fa = Matrix3X::Zero(3, x.cols()), fb = Matrix3X::Zero(3, x.cols());
+  a.climbers->add_forces(TetherState{t, x, v, a.mesh.node_mass}, fa);
+  b.climbers->add_forces(TetherState{t, x, v, b.mesh.node_mass}, fb);
+  const auto e = static_cast<Eigen::Index>(at.element);
+  const Eigen::Vector3d rc = (1.0 - at.xi) * x.col(e) + at.xi * x.col(e + 1);
+  Matrix3X one_x(3, 1), one_v = Matrix3X::Zero(3, 1), ft = Matrix3X::Zero(3, 1);
+  one_x.col(0) = rc;
+  Eigen::VectorXd one_m(1);
+  one_m[0] = at.mass_kg;
+  tide->add_forces(TetherState{t, one_x, one_v, one_m}, ft);
+  const Eigen::Vector3d expected = ft.col(0);
+  INFO("tidal force on the climber " << expected.transpose() << " N");
+  REQUIRE(expected.norm() > 0.0);
+  CHECK((fb.col(e) - fa.col(e) - (1.0 - at.xi) * expected).norm() < 1e-9 * expected.norm());
+  CHECK((fb.col(e + 1) - fa.col(e + 1) - at.xi * expected).norm() < 1e-9 * expected.norm());
+}
