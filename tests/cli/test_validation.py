@@ -166,7 +166,9 @@ def main():
         demo = os.path.join(a.source, "scenarios", "demo.yaml")
         for setting, words in (("climbers[3].mass=30 t", "there is no [3]"),
                                ("climbers[x].mass=30 t", "list index is written"),
-                               ("mesh[0]=3", "mesh is not a list")):
+                               ("mesh[0]=3", "mesh is not a list"),
+                               # a climber's drag needs air (the demo has no atmosphere)
+                               ("climbers[0].drag={area: 4 m^2, cd: 1.1}", "needs air")):
             p = r.run("check", demo, "--set", setting)
             ok = p.returncode == 2 and words in p.stderr and "--set " + setting in p.stderr
             r.passed += ok
