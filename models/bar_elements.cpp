@@ -38,26 +38,21 @@ double BarElements::add_forces_and_dissipation(const TetherState& s, Matrix3X& f
   double* fp = f.data();
   double power = 0.0;
   for (std::size_t e = 0; e < l0_.size(); ++e) {
-    const double* xa = x + 3 * e;
-    const double d0 = xa[3] - xa[0], d1 = xa[4] - xa[1], d2 = xa[5] - xa[2];
-    const double l = std::sqrt(d0 * d0 + d1 * d1 + d2 * d2);
-    double ldot = 0.0;
-    if (c_[e] != 0.0) {
-      const double* va = v + 3 * e;
-      ldot = (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l;
-    }
+    const Chord ch = chord(x, e);
+    const double l = std::sqrt(ch.l2);
+    const double ldot = c_[e] != 0.0 ? stretch_rate(ch, v, e, l) : 0.0;
     const double tension = tension_law(e, l, ldot, s.t);
     if (tension == 0.0) continue;  // slack or cut: carries nothing
     // The damping part of the tension, (T - elastic), does work -(T - elastic) ldot.
     if (c_[e] != 0.0) power += (tension - k_[e] * (l - l0_[e])) * ldot;
     const double q = tension / l;  // T n = (T / l) d
     double* fa = fp + 3 * e;
-    fa[0] += q * d0;
-    fa[1] += q * d1;
-    fa[2] += q * d2;
-    fa[3] -= q * d0;
-    fa[4] -= q * d1;
-    fa[5] -= q * d2;
+    fa[0] += q * ch.d0;
+    fa[1] += q * ch.d1;
+    fa[2] += q * ch.d2;
+    fa[3] -= q * ch.d0;
+    fa[4] -= q * ch.d1;
+    fa[5] -= q * ch.d2;
   }
   return power;
 }
@@ -115,18 +110,14 @@ double BarElements::rupture_indicator(const TetherState& s, const std::vector<do
   double worst = -1.0;  // every element slack or cut
   for (std::size_t e = 0; e < l0_.size(); ++e) {
     if (s.t >= cut_time_[e]) continue;
-    const double* xa = x + 3 * e;
-    const double d0 = xa[3] - xa[0], d1 = xa[4] - xa[1], d2 = xa[5] - xa[2];
-    const double l2 = d0 * d0 + d1 * d1 + d2 * d2;
+    const Chord ch = chord(x, e);
     double g;
     if (c_[e] == 0.0) {
       const double lc = l0_[e] + capacity_n[e] / k_[e];
-      g = l2 / (lc * lc) - 1.0;
+      g = ch.l2 / (lc * lc) - 1.0;
     } else {
-      const double* va = v + 3 * e;
-      const double l = std::sqrt(l2);
-      const double ldot = (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l;
-      g = tension_law(e, l, ldot, s.t) / capacity_n[e] - 1.0;
+      const double l = std::sqrt(ch.l2);
+      g = tension_law(e, l, stretch_rate(ch, v, e, l), s.t) / capacity_n[e] - 1.0;
     }
     worst = std::max(worst, g);
   }
@@ -139,15 +130,9 @@ void BarElements::tensions(const TetherState& s, std::vector<double>& t) const {
   const double* x = s.x.data();
   const double* v = s.v.data();
   for (std::size_t e = 0; e < l0_.size(); ++e) {
-    const double* xa = x + 3 * e;
-    const double d0 = xa[3] - xa[0], d1 = xa[4] - xa[1], d2 = xa[5] - xa[2];
-    const double l = std::sqrt(d0 * d0 + d1 * d1 + d2 * d2);
-    double ldot = 0.0;
-    if (c_[e] != 0.0) {
-      const double* va = v + 3 * e;
-      ldot = (d0 * (va[3] - va[0]) + d1 * (va[4] - va[1]) + d2 * (va[5] - va[2])) / l;
-    }
-    t[e] = tension_law(e, l, ldot, s.t);
+    const Chord ch = chord(x, e);
+    const double l = std::sqrt(ch.l2);
+    t[e] = tension_law(e, l, c_[e] != 0.0 ? stretch_rate(ch, v, e, l) : 0.0, s.t);
   }
 }
 

@@ -52,6 +52,20 @@ class BarElements : public ForceModel {
     double l, ldot, tension;  // tension clamped at 0
   };
   Kinematics kinematics(const TetherState& s, std::size_t e) const;
+  /// Element e's chord d = x_{e+1} - x_e on plain column-major arrays (3 values per node), its
+  /// squared length, and its stretch rate ldot = d . (v_{e+1} - v_e) / l: the hot loops' view.
+  struct Chord {
+    double d0, d1, d2, l2;
+  };
+  static Chord chord(const double* x, std::size_t e) {
+    const double* a = x + 3 * e;
+    const double d0 = a[3] - a[0], d1 = a[4] - a[1], d2 = a[5] - a[2];
+    return {d0, d1, d2, d0 * d0 + d1 * d1 + d2 * d2};
+  }
+  static double stretch_rate(const Chord& c, const double* v, std::size_t e, double l) {
+    const double* a = v + 3 * e;
+    return (c.d0 * (a[3] - a[0]) + c.d1 * (a[4] - a[1]) + c.d2 * (a[5] - a[2])) / l;
+  }
   /// The element's law, in one place: T = k (l - L0) + c ldot if l > L0, the element is not
   /// cut at time t and that is > 0; else 0 [N].
   double tension_law(std::size_t e, double l_m, double ldot_m_s, double t_s) const {
