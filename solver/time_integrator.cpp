@@ -308,6 +308,31 @@ class Stepper {
   virtual const char* evolve_call() const = 0;
 };
 
+/// The linear solver of the Newton iterations (bdf, esdirk) and its Jacobian callback: the
+/// system's structured solver behind a stand-in matrix if it has one, else band LU on
+/// SUNBandMatrix storage (SUNBandMatrix 6.x sets the storage upper bandwidth to mu + ml
+/// itself, the room the band LU factorisation needs for fill-in).
+struct LinearSolverChoice {
+  sd::Matrix matrix;
+  sd::LinearSolver solver;
+  int (*jacobian)(realtype, N_Vector, N_Vector, SUNMatrix, void*, N_Vector, N_Vector, N_Vector);
+};
+LinearSolverChoice make_linear_solver(CallbackBridge& bridge, N_Vector y0, SUNContext ctx) {
+  LinearSolverChoice out;
+  if (bridge.system.has_newton_solver()) {
+    out.matrix.reset(make_stand_in_matrix(ctx));
+    out.solver.reset(make_newton_solver(bridge, ctx));
+    out.jacobian = system_jacobian_callback;
+    return out;
+  }
+  const long n = N_VGetLength(y0);
+  const long b = std::min<long>(bridge.system.half_bandwidth(), n - 1);
+  out.matrix.reset(sd::check_created(SUNBandMatrix(n, b, b, ctx), "SUNBandMatrix"));
+  out.solver.reset(sd::check_created(SUNLinSol_Band(y0, out.matrix.get(), ctx), "SUNLinSol_Band"));
+  out.jacobian = jacobian_callback;
+  return out;
+}
+
 /// Error weights 1 / (rtol |y_i| + atol_i), computed in one pass (sd::error_weights)
 /// rather than the library's four; the same weights as CVodeSVtolerances would use.
 int weights_callback(N_Vector y, N_Vector w, void* user_data) {
@@ -334,21 +359,12 @@ class CvodeStepper final : public Stepper {
     if (bdf_ && o.stability_limit_detection)
       sd::check_cvode(CVodeSetStabLimDet(m, SUNTRUE), "CVodeSetStabLimDet");
 
-    if (bdf_ && bridge.system.has_newton_solver()) {
-      matrix_.reset(make_stand_in_matrix(ctx));
-      linear_.reset(make_newton_solver(bridge, ctx));
+    if (bdf_) {
+      LinearSolverChoice ls = make_linear_solver(bridge, y0, ctx);
+      matrix_ = std::move(ls.matrix);
+      linear_ = std::move(ls.solver);
       sd::check_cvls(CVodeSetLinearSolver(m, linear_.get(), matrix_.get()), "CVodeSetLinearSolver");
-      sd::check_cvls(CVodeSetJacFn(m, system_jacobian_callback), "CVodeSetJacFn");
-    } else if (bdf_) {
-      // SUNBandMatrix (6.x) sets the storage upper bandwidth to mu + ml itself, the room
-      // the band LU factorisation needs for fill-in.
-      const long n = N_VGetLength(y0);
-      const long b = std::min<long>(bridge.system.half_bandwidth(), n - 1);
-      matrix_.reset(sd::check_created(SUNBandMatrix(n, b, b, ctx), "SUNBandMatrix"));
-      linear_.reset(sd::check_created(SUNLinSol_Band(y0, matrix_.get(), ctx), "SUNLinSol_Band"));
-      sd::check_cvls(CVodeSetLinearSolver(m, linear_.get(), matrix_.get()),
-                     "CVodeSetLinearSolver");
-      sd::check_cvls(CVodeSetJacFn(m, jacobian_callback), "CVodeSetJacFn");
+      sd::check_cvls(CVodeSetJacFn(m, ls.jacobian), "CVodeSetJacFn");
     } else {
       nonlinear_.reset(sd::check_created(SUNNonlinSol_FixedPoint(y0, 0, ctx),
                                          "SUNNonlinSol_FixedPoint"));
@@ -430,20 +446,11 @@ class ArkodeStepper final : public Stepper {
       // stiffly accurate, so the tether's undamped high modes are damped rather than
       // amplified (unlike BDF3-5), at 3 implicit stages per step. Each stage's Newton systems
       // go to the system's structured solver, as for bdf.
-      if (bridge.system.has_newton_solver()) {
-        matrix_.reset(make_stand_in_matrix(ctx));
-        linear_.reset(make_newton_solver(bridge, ctx));
-        sd::check_arkode(ARKStepSetLinearSolver(m, linear_.get(), matrix_.get()),
-                         "ARKStepSetLinearSolver");
-        sd::check_arkode(ARKStepSetJacFn(m, system_jacobian_callback), "ARKStepSetJacFn");
-      } else {
-        const long b = std::min<long>(bridge.system.half_bandwidth(), n_ - 1);
-        matrix_.reset(sd::check_created(SUNBandMatrix(n_, b, b, ctx), "SUNBandMatrix"));
-        linear_.reset(sd::check_created(SUNLinSol_Band(y0, matrix_.get(), ctx), "SUNLinSol_Band"));
-        sd::check_arkode(ARKStepSetLinearSolver(m, linear_.get(), matrix_.get()),
-                         "ARKStepSetLinearSolver");
-        sd::check_arkode(ARKStepSetJacFn(m, jacobian_callback), "ARKStepSetJacFn");
-      }
+      LinearSolverChoice ls = make_linear_solver(bridge, y0, ctx);
+      matrix_ = std::move(ls.matrix);
+      linear_ = std::move(ls.solver);
+      sd::check_arkode(ARKStepSetLinearSolver(m, linear_.get(), matrix_.get()), "ARKStepSetLinearSolver");
+      sd::check_arkode(ARKStepSetJacFn(m, ls.jacobian), "ARKStepSetJacFn");
       sd::check_arkode(ARKStepSetTableNum(m, ARKODE_ARK324L2SA_DIRK_4_2_3, ARKODE_ERK_NONE),
                        "ARKStepSetTableNum");
       // A stage's derivative is deduced from its converged Newton solution,
