@@ -7,6 +7,8 @@
 // off (h5_silence_errors), since the exception now says it and main() decides what to print.
 #include <hdf5.h>
 
+#include <cerrno>
+#include <cstring>
 #include <string>
 #include <type_traits>
 #include <utility>
@@ -16,6 +18,11 @@
 namespace hawser {
 
 /// Stop HDF5 printing its error stack on the default stack of this thread (idempotent, cheap).
+/// "<op> '<name>': <strerror(errno)>", for a failed system call on a file.
+inline std::string errno_text(const char* op, const std::string& name) {
+  return std::string(op) + " '" + name + "': " + std::strerror(errno);
+}
+
 inline void h5_silence_errors() { H5Eset_auto2(H5E_DEFAULT, nullptr, nullptr); }
 
 namespace detail {

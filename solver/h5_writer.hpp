@@ -21,7 +21,7 @@
 //     ("inflate() failed"), and writes B-tree nodes before the superblock's end of allocation
 //     ("addr overflow", "truncated file"). Live readers fail the same way.
 //
-// The design: an ordered commit under the library (the driver in h5_writer.cpp)
+// The design: an ordered commit under the library (the driver in h5_commit_driver.cpp)
 //   1. No reuse: freed space is dropped (file space strategy NONE) and the end of allocation
 //      never drops below the last commit, so bytes a committed state (or a reader's cached copy
 //      of it) refers to are never overwritten with other data.
