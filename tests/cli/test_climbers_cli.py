@@ -26,6 +26,8 @@ import tempfile
 import h5py
 import numpy as np
 
+from cli_checks import Checks
+
 GM = 3.986004418e14   # m^3/s^2, WGS 84 (NIMA TR8350.2 Table 3.1)
 OMEGA = 7.292115e-5   # rad/s, WGS 84 (NIMA TR8350.2 Table 3.1)
 
@@ -85,19 +87,6 @@ UNITS = {"s": "m", "altitude": "m", "on_tether": "1", "position": "m", "velocity
          "tension_below": "N", "tension_above": "N"}
 SHAPES = {"position": (3,), "velocity": (3,), "coriolis_force": (3,), "lateral_offset": (2,)}
 
-
-class Checks:
-    def __init__(self):
-        self.passed = self.failed = 0
-
-    def check(self, ok, what, detail=""):
-        if ok:
-            self.passed += 1
-            print(f"ok   {what}")
-        else:
-            self.failed += 1
-            print(f"FAIL {what} {detail}")
-        return ok
 
 
 def line_of(text, needle, after=None):
@@ -247,8 +236,7 @@ def main():
                 c.check(s3["on_tether"][0] == 0 and s3["on_tether"][-1] == 1 and s3["s"][-1] > 0.0,
                         "shuttle_3 joins at its departure and is on its way at the end")
 
-    print(f"{c.passed} passed, {c.failed} failed")
-    return 0 if c.failed == 0 else 1
+    return c.summary()
 
 
 if __name__ == "__main__":

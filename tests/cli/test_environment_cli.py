@@ -19,18 +19,8 @@ import tempfile
 import h5py
 import numpy as np
 
+from cli_checks import Checks
 
-class Checks:
-    def __init__(self):
-        self.passed = self.failed = 0
-
-    def check(self, ok, what, detail=""):
-        if ok:
-            self.passed += 1
-            print(f"ok   {what}")
-        else:
-            self.failed += 1
-            print(f"FAIL {what} {detail}")
 
 
 def run(hawser, *args):
@@ -144,8 +134,7 @@ def main():
         p = run(a.hawser, "keys")
         c.check(p.returncode == 0 and "environment.turbulence.stations[].sigma" in p.stdout
                 and "events.strikes[].impulse" in p.stdout, "hawser keys lists the environment and event keys")
-    print(f"{c.passed} passed, {c.failed} failed")
-    return 1 if c.failed else 0
+    return c.summary()
 
 
 if __name__ == "__main__":

@@ -22,6 +22,8 @@ import tempfile
 import h5py
 import numpy as np
 
+from cli_checks import Checks
+
 STRING = """\
 name: modes test string
 material: steel_4340
@@ -30,19 +32,6 @@ mesh: {elements: 40}
 """
 L_M, T_N, MU_KG_M, N_EL = 10.0, 100.0, 7850.0 * 1e-6, 40
 
-
-class Checks:
-    def __init__(self):
-        self.passed = self.failed = 0
-
-    def check(self, ok, what, detail=""):
-        if ok:
-            self.passed += 1
-            print(f"ok   {what}")
-        else:
-            self.failed += 1
-            print(f"FAIL {what} {detail}")
-        return ok
 
 
 def main():
@@ -162,8 +151,7 @@ def main():
                     f"bad input {args[1:] or args}: exit 2 naming {words!r}",
                     f"exit {p.returncode}, stderr {p.stderr.strip()[:200]!r}, stdout {p.stdout[:100]!r}")
 
-    print(f"{c.passed} passed, {c.failed} failed")
-    return 1 if c.failed else 0
+    return c.summary()
 
 
 if __name__ == "__main__":

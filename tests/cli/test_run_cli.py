@@ -31,6 +31,8 @@ import h5py
 import numpy as np
 import yaml
 
+from cli_checks import Checks, text_attr
+
 # Short demo: 40 elements, 30 min, output every 5 min (the demo's own output_interval).
 N_EL = 40
 SHORT = ["--set", "simulation.duration=30 min", "--set", f"mesh.elements={N_EL}"]
@@ -71,25 +73,6 @@ SUMMARY_ATTRS = ["peak_tension_N", "peak_tension_element", "peak_tension_time_s"
                  "peak_north_south_node", "peak_north_south_time_s", "steps", "rhs_evals", "jac_evals",
                  "error_test_failures", "nonlinear_failures"]
 
-
-class Checks:
-    def __init__(self):
-        self.passed = self.failed = 0
-
-    def check(self, ok, what, detail=""):
-        ok = bool(ok)
-        if ok:
-            self.passed += 1
-            print(f"ok   {what}")
-        else:
-            self.failed += 1
-            print(f"FAIL {what} {detail}")
-        return ok
-
-
-def text_attr(obj, name):
-    v = obj.attrs.get(name)
-    return v.decode("utf-8") if isinstance(v, bytes) else v
 
 
 def replace_block(text, key, block):
@@ -605,8 +588,7 @@ def main():
         check_bad_input(c, h, demo_path, demo_text)
         check_progress(c, h, demo_path)
 
-    print(f"{c.passed} passed, {c.failed} failed")
-    return 1 if c.failed else 0
+    return c.summary()
 
 
 if __name__ == "__main__":

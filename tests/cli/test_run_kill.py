@@ -33,6 +33,8 @@ import time
 import h5py
 import numpy as np
 
+from cli_checks import Checks, text_attr
+
 FLUSH_EVERY = 2
 INTERVAL_S = 60.0
 DURATION_S = 5 * 3600.0
@@ -46,24 +48,9 @@ STATIC = ["/mesh/s0", "/mesh/node_mass", "/mesh/element_area", "/mesh/element_L0
           "/equilibrium/tension", "/nodes/index"]
 
 
-class Checks:
-    def __init__(self):
-        self.passed = self.failed = 0
-
-    def check(self, ok, what, detail=""):
-        ok = bool(ok)
-        if ok:
-            self.passed += 1
-            print(f"ok   {what}")
-        else:
-            self.failed += 1
-            print(f"FAIL {what} {detail}")
-        return ok
-
 
 def status_of(f):
-    v = f.attrs.get("status")
-    return v.decode("utf-8") if isinstance(v, bytes) else v
+    return text_attr(f, "status")
 
 
 def snapshot(path, hold_s=0.0, keep_rows=False):
@@ -253,8 +240,7 @@ def main():
     with tempfile.TemporaryDirectory() as tmp:
         ref = check_live(c, exe, demo, tmp)
         check_kills(c, exe, demo, tmp, ref, rng, a.kills)
-    print(f"{c.passed} passed, {c.failed} failed")
-    return 1 if c.failed else 0
+    return c.summary()
 
 
 if __name__ == "__main__":

@@ -1,0 +1,33 @@
+"""What every command-line test shares: a tally of checks that prints one line per check.
+
+Not a test itself (ctest runs tests/cli/test_*.py only). A test script imports it from its own
+directory, which Python puts first on the module path.
+"""
+
+
+class Checks:
+    """Counts passed and failed checks; `check` prints `ok   what` or `FAIL what detail`."""
+
+    def __init__(self):
+        self.passed = self.failed = 0
+
+    def check(self, ok, what, detail=""):
+        ok = bool(ok)
+        if ok:
+            self.passed += 1
+            print(f"ok   {what}")
+        else:
+            self.failed += 1
+            print(f"FAIL {what} {detail}")
+        return ok
+
+    def summary(self):
+        """Prints the closing line ctest reads and returns the exit code (0: all passed)."""
+        print(f"{self.passed} passed, {self.failed} failed")
+        return 1 if self.failed else 0
+
+
+def text_attr(obj, name):
+    """An HDF5 string attribute as str (h5py returns bytes for fixed-length strings)."""
+    v = obj.attrs.get(name)
+    return v.decode("utf-8") if isinstance(v, bytes) else v
