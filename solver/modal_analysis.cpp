@@ -46,6 +46,22 @@ LinearisedTether linearise(const TetherModel& model) {
   for (const ForceModel* f : model.forces()) f->add_jacobian(s, jac);
 
   std::vector<Eigen::Triplet<double>> k_entries, c_entries, m_entries;
+  // Climbers where they are at t = 0 add m w w^T per axis, w = (1 - xi, xi) on their element's
+  // two nodes (the consistent mass of physics.md section 5, as TetherSystem::assemble_mass);
+  // couplings to a prescribed node drop out of the free equations.
+  if (model.climbers) {
+    for (const Attachment& at : model.climbers->attachments(0.0)) {
+      const std::size_t e = at.element;
+      const double w[2] = {1.0 - at.xi, at.xi};
+      for (int p = 0; p < 2; ++p)
+        for (int q = 0; q < 2; ++q) {
+          const std::size_t i = e + p, j = e + q;
+          const double m = at.mass_kg * w[p] * w[q];
+          if (i < first || i > last || j < first || j > last || m == 0.0) continue;
+          for (int a = 0; a < 3; ++a) m_entries.emplace_back(3 * (i - first) + a, 3 * (j - first) + a, m);
+        }
+    }
+  }
   for (std::size_t i = first; i <= last; ++i) {
     const std::size_t row = 3 * (i - first);
     for (int a = 0; a < 3; ++a) m_entries.emplace_back(row + a, row + a, model.mesh.node_mass[i]);

@@ -49,12 +49,12 @@ class TetherSystem;
 
 /// The linearised tether on the free nodes; dof 3 (k - first_free) + a is axis a of node k.
 ///
-/// Linearised about the static equilibrium (mesh.position at rest). Seam, NOT implemented:
-/// climbers parked at given altitudes and a steady wind are not in the code yet. When they
-/// exist as force models they change (1) the point of linearisation, a new static
-/// equilibrium under their loads, to be passed here instead of mesh.position, and (2) for
-/// climbers, the mass matrix: consistent rank-one terms per axis (physics.md section 5),
-/// which is why M is kept sparse rather than as a diagonal. Nothing else here changes.
+/// Linearised about the static equilibrium (mesh.position at rest), which holds the climbers
+/// parked at their start points; the climbers where they are at t = 0 add their consistent
+/// mass m w w^T per axis (physics.md section 5) to M, which is why M is kept sparse rather
+/// than as a diagonal. Seam, NOT implemented: a steady wind would move the point of
+/// linearisation to a new static equilibrium under its drag, to be passed here instead of
+/// mesh.position; today drag enters only through its Jacobian at the calm equilibrium.
 struct LinearisedTether {
   std::size_t first_free = 0, last_free = 0;
   Eigen::SparseMatrix<double> mass;         // M [kg]

@@ -19,6 +19,7 @@
 #include "models/climber_profile.hpp"
 #include "solver/equilibrium.hpp"
 #include "solver/initial_state.hpp"
+#include "solver/modal_analysis.hpp"
 #include "solver/scenario.hpp"
 #include "solver/simulation.hpp"
 
@@ -423,6 +424,15 @@ TEST_CASE("a climber parked on a node is that node with the climber's mass added
     for (std::size_t e = 0; e < a.elements(); ++e) {
       CHECK(a.equilibrium.tension_n[e] == Approx(b.equilibrium.tension_n[e]).epsilon(1e-13));
       CHECK(a.equilibrium.l0_m[e] == Approx(b.equilibrium.l0_m[e]).epsilon(1e-15));
+    }
+    // Modes: the climber's consistent mass in M makes them those of the heavier node.
+    ModalOptions mo;
+    mo.modes = 6;
+    const ModalResult ma = modal_analysis(a, mo), mb = modal_analysis(b, mo);
+    REQUIRE(ma.modes.size() == mb.modes.size());
+    for (std::size_t j = 0; j < ma.modes.size(); ++j) {
+      INFO("mode " << j + 1 << ": " << ma.modes[j].period_s << " s against " << mb.modes[j].period_s << " s");
+      CHECK(ma.modes[j].period_s == Approx(mb.modes[j].period_s).epsilon(1e-8));
     }
     // Right-hand sides and Newton solves at perturbed states.
     TetherSystem sys_a(a);
