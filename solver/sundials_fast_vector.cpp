@@ -63,17 +63,22 @@ void add_const(N_Vector x, realtype b, N_Vector z) {
 // throughput. The result differs from the serial sum only in rounding.
 constexpr int kLanes = 16;
 
-HAWSER_VECTOR_CLONES realtype dot(N_Vector x, N_Vector y) {
-  const double *xd = d(x), *yd = d(y);
-  const sunindextype len = n(x);
+/// sum_i term(i) for i < len, in kLanes partial sums; inlined into each caller's clone.
+template <class Term>
+inline __attribute__((always_inline)) double lane_sum(sunindextype len, Term term) {
   double acc[kLanes] = {};
   sunindextype i = 0;
   for (; i + kLanes <= len; i += kLanes)
-    for (int j = 0; j < kLanes; ++j) acc[j] += xd[i + j] * yd[i + j];
+    for (int j = 0; j < kLanes; ++j) acc[j] += term(i + j);
   double s = 0.0;
-  for (; i < len; ++i) s += xd[i] * yd[i];
+  for (; i < len; ++i) s += term(i);
   for (double a : acc) s += a;
   return s;
+}
+
+HAWSER_VECTOR_CLONES realtype dot(N_Vector x, N_Vector y) {
+  const double *xd = d(x), *yd = d(y);
+  return lane_sum(n(x), [=](sunindextype i) { return xd[i] * yd[i]; });
 }
 realtype max_norm(N_Vector x) {
   const double* xd = d(x);
@@ -85,21 +90,10 @@ realtype max_norm(N_Vector x) {
 }
 HAWSER_VECTOR_CLONES realtype wsqr_sum(N_Vector x, N_Vector w) {
   const double *xd = d(x), *wd = d(w);
-  const sunindextype len = n(x);
-  double acc[kLanes] = {};
-  sunindextype i = 0;
-  for (; i + kLanes <= len; i += kLanes)
-    for (int j = 0; j < kLanes; ++j) {
-      const double p = xd[i + j] * wd[i + j];
-      acc[j] += p * p;
-    }
-  double s = 0.0;
-  for (; i < len; ++i) {
+  return lane_sum(n(x), [=](sunindextype i) {
     const double p = xd[i] * wd[i];
-    s += p * p;
-  }
-  for (double a : acc) s += a;
-  return s;
+    return p * p;
+  });
 }
 realtype wsqr_sum_mask(N_Vector x, N_Vector w, N_Vector id) {
   const double *xd = d(x), *wd = d(w), *md = d(id);
@@ -248,18 +242,9 @@ int linear_combination_array(int nv, int ns, realtype* c, N_Vector** x, N_Vector
 }  // namespace
 
 HAWSER_VECTOR_CLONES bool all_finite(N_Vector v) {
-  // 0 * x is 0 for finite x and NaN otherwise, and NaN survives any sum: 16 partial sums
-  // (see kLanes) make one vectorised pass.
+  // 0 * x is 0 for finite x and NaN otherwise, and NaN survives any sum.
   const double* vd = d(v);
-  const sunindextype len = n(v);
-  double acc[kLanes] = {};
-  sunindextype i = 0;
-  for (; i + kLanes <= len; i += kLanes)
-    for (int j = 0; j < kLanes; ++j) acc[j] += 0.0 * vd[i + j];
-  double s = 0.0;
-  for (; i < len; ++i) s += 0.0 * vd[i];
-  for (double a : acc) s += a;
-  return s == 0.0;
+  return lane_sum(n(v), [=](sunindextype i) { return 0.0 * vd[i]; }) == 0.0;
 }
 
 namespace {

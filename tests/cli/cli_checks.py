@@ -3,6 +3,15 @@
 Not a test itself (ctest runs tests/cli/test_*.py only). A test script imports it from its own
 directory, which Python puts first on the module path.
 """
+import argparse
+
+
+def command_line():
+    """The arguments ctest passes every command-line test: --hawser BIN --source DIR."""
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--hawser", required=True, help="the hawser program")
+    ap.add_argument("--source", required=True, help="the source tree (scenarios/, config/)")
+    return ap.parse_args()
 
 
 class Checks:

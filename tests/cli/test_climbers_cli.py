@@ -16,7 +16,6 @@ TR8350.2 Table 3.1), as config/planets.yaml.
 
 Run by ctest as: python3 test_climbers_cli.py --hawser BIN --source DIR
 """
-import argparse
 import math
 import os
 import subprocess
@@ -26,7 +25,7 @@ import tempfile
 import h5py
 import numpy as np
 
-from cli_checks import Checks
+from cli_checks import Checks, command_line
 
 GM = 3.986004418e14   # m^3/s^2, WGS 84 (NIMA TR8350.2 Table 3.1)
 OMEGA = 7.292115e-5   # rad/s, WGS 84 (NIMA TR8350.2 Table 3.1)
@@ -111,10 +110,7 @@ def text_attr(v):
 
 
 def main():
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--hawser", required=True)
-    ap.add_argument("--source", required=True)
-    a = ap.parse_args()
+    a = command_line()
     c = Checks()
 
     def hawser(*args):

@@ -10,7 +10,6 @@ overhead, -1 at right angles).
 
 Run by ctest as: python3 test_environment_cli.py --hawser BIN --source DIR
 """
-import argparse
 import os
 import subprocess
 import sys
@@ -19,7 +18,7 @@ import tempfile
 import h5py
 import numpy as np
 
-from cli_checks import Checks
+from cli_checks import Checks, command_line
 
 
 
@@ -66,10 +65,7 @@ BAD = [
 
 
 def main():
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--hawser", required=True)
-    ap.add_argument("--source", required=True)
-    a = ap.parse_args()
+    a = command_line()
     c = Checks()
     storm = os.path.join(a.source, "scenarios", "storm.yaml")
     cut = os.path.join(a.source, "scenarios", "cut.yaml")

@@ -11,7 +11,6 @@ config/materials.yaml (steel_4340, ASM Handbook Vol. 1).
 
 Run by ctest as: python3 test_modes_cli.py --hawser BIN --source DIR
 """
-import argparse
 import json
 import math
 import os
@@ -22,7 +21,7 @@ import tempfile
 import h5py
 import numpy as np
 
-from cli_checks import Checks
+from cli_checks import Checks, command_line
 
 STRING = """\
 name: modes test string
@@ -35,10 +34,7 @@ L_M, T_N, MU_KG_M, N_EL = 10.0, 100.0, 7850.0 * 1e-6, 40
 
 
 def main():
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--hawser", required=True)
-    ap.add_argument("--source", required=True)
-    a = ap.parse_args()
+    a = command_line()
     c = Checks()
 
     def run(*args):

@@ -17,7 +17,6 @@ on the recorded arrays, compared with what the program says about them.
 
 Run by ctest as: python3 test_run_cli.py --hawser BIN --source DIR
 """
-import argparse
 import json
 import math
 import os
@@ -31,7 +30,7 @@ import h5py
 import numpy as np
 import yaml
 
-from cli_checks import Checks, text_attr
+from cli_checks import Checks, command_line, text_attr
 
 # Short demo: 40 elements, 30 min, output every 5 min (the demo's own output_interval).
 N_EL = 40
@@ -558,10 +557,7 @@ def check_progress(c, h, demo_path):
 
 
 def main():
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--hawser", required=True)
-    ap.add_argument("--source", required=True)
-    a = ap.parse_args()
+    a = command_line()
     c = Checks()
     demo_path = os.path.join(a.source, "scenarios", "demo.yaml")
     demo_text = open(demo_path).read()
