@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 
 namespace hawser {
 
@@ -189,6 +190,39 @@ std::vector<OutputField> ClimberLoad::output_fields(const std::vector<std::size_
     f.push_back({g + "tension_above", {}, "N", ""});
   }
   return f;
+}
+
+std::vector<OutputAttribute> ClimberLoad::output_attributes() const {
+  static const char* ends[] = {"park", "leave", "drop_payload"};
+  std::vector<OutputAttribute> out;
+  for (const Climber& c : climbers_) {
+    const std::string g = "/climbers/" + c.name;
+    const ClimberProfile& p = c.profile;
+    double top_speed = 0.0;
+    std::string table = "t [s], s [m], ds/dt [m/s] at each change of the profile:";
+    for (const double t : p.segment_times()) {
+      const ClimberProfile::Kinematics k = p.at(t);
+      top_speed = std::max(top_speed, std::abs(k.speed_m_s));
+      char row[96];
+      std::snprintf(row, sizeof row, "\n%.9g, %.9g, %.9g", t, k.s_m, k.speed_m_s);
+      table += row;
+    }
+    out.push_back({g, "mass_kg", c.mass_kg, ""});
+    out.push_back({g, "from_m", p.from(), ""});
+    out.push_back({g, "to_m", p.to(), ""});
+    out.push_back({g, "start_time_s", p.start_time(), ""});
+    out.push_back({g, "end_time_s", p.end_time(), ""});
+    out.push_back({g, "top_speed_m_s", top_speed, ""});
+    out.push_back({g, "drag_area_m2", c.drag_area_m2, ""});
+    out.push_back({g, "at_end", 0.0, ends[static_cast<int>(c.at_end)]});
+    if (c.at_end == ClimberEnd::drop_payload) out.push_back({g, "end_mass_kg", c.end_mass_kg, ""});
+    out.push_back({g, "sudden_load", c.sudden ? 1.0 : 0.0, ""});
+    out.push_back({g, "profile", 0.0, table});
+    out.push_back({g, "meaning", 0.0,
+                   "s: material coordinate (unstretched arc length from the anchor); from_m, to_m: "
+                   "the profile's ends in it; speeds along the unstretched ribbon"});
+  }
+  return out;
 }
 
 void ClimberLoad::sample_outputs(const TetherState& s, const std::vector<std::size_t>&,

@@ -64,6 +64,7 @@ class ClimberLoad : public ForceModel {
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
   std::vector<double> event_times() const override;
   std::vector<OutputField> output_fields(const std::vector<std::size_t>& nodes) const override;
+  std::vector<OutputAttribute> output_attributes() const override;
   void sample_outputs(const TetherState& s, const std::vector<std::size_t>& nodes,
                       std::vector<std::vector<double>>& rows) const override;
 

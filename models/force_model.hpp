@@ -58,6 +58,16 @@ struct OutputField {
   std::string summary_peak;
 };
 
+/// A fact a model states about itself in the result file, so that the file explains itself
+/// without the scenario (a climber's mass and profile): attribute `name` on the group or
+/// dataset `object_path`; a number (with its unit in the name: `mass_kg`) or a text.
+struct OutputAttribute {
+  std::string object_path;
+  std::string name;
+  double number = 0.0;
+  std::string text;       // used when not empty
+};
+
 class ForceModel {
  public:
   virtual ~ForceModel() = default;
@@ -85,6 +95,8 @@ class ForceModel {
   virtual std::vector<double> event_times() const { return {}; }
   /// The time histories this model offers; `nodes` are the nodes the run records.
   virtual std::vector<OutputField> output_fields(const std::vector<std::size_t>& /*nodes*/) const { return {}; }
+  /// Attributes for the result file (written once, with the fixed data).
+  virtual std::vector<OutputAttribute> output_attributes() const { return {}; }
   /// One row per field of output_fields(), in its order, at state s.
   virtual void sample_outputs(const TetherState& /*s*/, const std::vector<std::size_t>& /*nodes*/,
                               std::vector<std::vector<double>>& /*rows*/) const {}

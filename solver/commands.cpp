@@ -2,6 +2,7 @@
 
 #include <cstdio>
 #include <iostream>
+#include <memory>
 
 #include "solver/design_report.hpp"
 #include "solver/key_reference.hpp"
@@ -74,16 +75,33 @@ void print_summary(const RunSummary& s, const std::string& file) {
 }
 }  // namespace
 
-int cmd_run(const CommonOptions& opt, std::string output) {
+int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume) {
   const Scenario sc = load_scenario(opt.scenario, opt.overrides);
   if (!sc.simulation.given)
     throw InputError("error: " + sc.values.where("") + ": simulation: missing: `hawser run` needs a simulation "
                      "block (duration, output_interval; see `hawser keys`)\n");
+  std::unique_ptr<ResumePoint> point;
+  if (!resume.empty()) {
+    if (!output.empty() && output != resume)
+      throw InputError("error: --resume " + resume + " continues that file; -o " + output +
+                       " names another (give one of them)\n");
+    output = resume;
+    point = std::make_unique<ResumePoint>(read_resume_point(resume));
+    if (point->scenario_text != sc.text_as_run)
+      throw InputError("error: " + resume + ": cannot resume: it was started from another scenario "
+                       "(or other --set values) than " + opt.scenario + "\n");
+  }
   if (output.empty()) output = default_output(opt.scenario);
   const TetherModel model = build_model(sc);
   TetherSystem system(model);
-  std::vector<double> y0 = initial_state(system, sc.initial);
-  if (sc.initial.mode_index > 0) {
+  std::vector<double> y0;
+  if (point) {
+    if (point->checkpoint.state.size() != system.layout().size())
+      throw InputError("error: " + resume + ": cannot resume: its state does not fit this model\n");
+  } else {
+    y0 = initial_state(system, sc.initial);
+  }
+  if (!point && sc.initial.mode_index > 0) {
     // Start in a mode of the linearised tether (the check run of a modal analysis).
     ModalOptions mo;
     mo.modes = sc.initial.mode_index;
@@ -98,9 +116,16 @@ int cmd_run(const CommonOptions& opt, std::string output) {
                 m.period_s, m.period_s / 3600.0, mode_kind_name(m.kind), sc.initial.mode_amplitude_m);
   }
   RunOptions ro = run_options(sc.simulation, system.layout());
-  ro.flush_every = sc.output.flush_every;
+  ro.flush.wall_interval_s = sc.output.flush_interval_s;
+  ro.flush.every_outputs = sc.output.flush_every;
   ro.progress = stderr_is_terminal();
-  ResultRecorder recorder(output, sc, model, output_nodes(model.nodes(), sc.output));
+  if (point) {
+    ro.resume = &point->checkpoint;
+    std::printf("resuming %s at t = %.6g s (%.4g h), after %zu outputs\n", output.c_str(),
+                point->checkpoint.time_s, point->checkpoint.time_s / 3600.0,
+                point->checkpoint.summary.outputs);
+  }
+  ResultRecorder recorder(output, sc, model, output_nodes(model.nodes(), sc.output), point.get());
   const RunSummary summary = run_simulation(system, y0, ro, recorder);
   recorder.finish(summary);
   print_summary(summary, output);

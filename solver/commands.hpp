@@ -16,6 +16,7 @@ int cmd_check(const CommonOptions& opt);
 int cmd_design(const CommonOptions& opt, bool json);
 int cmd_keys();
 /// `output` empty: <scenario file name without .yaml>.h5 in the current directory.
-int cmd_run(const CommonOptions& opt, std::string output);
+/// `resume`: a killed run's result file to continue (empty: a new run).
+int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume);
 
 }  // namespace hawser

@@ -1,366 +1,315 @@
-// H5Writer: groups, datasets, attributes and growing time series on the ordered-commit driver
-// (solver/h5_commit_driver.hpp; the design is in h5_writer.hpp).
+// H5Writer: segments, an index published by rename(2), one final file (design: h5_writer.hpp).
 #include "solver/h5_writer.hpp"
 
+#include <dirent.h>
 #include <fcntl.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include <algorithm>
-#include <cstdint>
+#include <chrono>
+#include <cstdio>
 #include <limits>
 #include <stdexcept>
-#include <string>
 #include <utility>
-#include <vector>
 
-#include "solver/h5_commit_driver.hpp"
+#include "solver/errors.hpp"
+#include "solver/h5_handles.hpp"
 
 namespace hawser {
 namespace {
 
-// =============================================================================================
-// Paths, types and property lists
-// =============================================================================================
+constexpr hsize_t kChunkBytes = 1024 * 1024;  // target chunk size of the final file
+constexpr std::size_t kMergeFanIn = 8;         // segments of one level merged into one
+constexpr double kRetireSeconds = 60.0;        // merged segments kept for older readers [s]
 
-std::vector<std::string> split_path(const std::string& path) {
-  std::vector<std::string> parts;
-  std::size_t start = 0;
-  while (start <= path.size()) {
-    const std::size_t slash = path.find('/', start);
-    const std::size_t stop = slash == std::string::npos ? path.size() : slash;
-    if (stop > start) parts.push_back(path.substr(start, stop - start));
-    start = stop + 1;
-  }
-  return parts;
-}
-
-std::string join_path(const std::vector<std::string>& parts, std::size_t count) {
-  std::string path;
-  for (std::size_t i = 0; i < count; ++i) path += "/" + parts[i];
-  return path.empty() ? "/" : path;
+double steady_seconds() {
+  return std::chrono::duration<double>(std::chrono::steady_clock::now().time_since_epoch())
+      .count();
 }
 
 H5PropListId plist(hid_t cls) { return H5PropListId{h5check(H5Pcreate(cls), "H5Pcreate")}; }
 
-// Object creation properties without timestamps: the files are reproducible, and a growing
-// dataset's header changes only in its dimensions.
 H5PropListId untimed(hid_t cls) {
   H5PropListId p = plist(cls);
   h5check(H5Pset_obj_track_times(p.get(), 0), "H5Pset_obj_track_times");
   return p;
 }
 
-// Create every missing group among the first `count` components of `parts`.
-void make_groups(hid_t file, const std::vector<std::string>& parts, std::size_t count) {
-  const H5PropListId gcpl = untimed(H5P_GROUP_CREATE);
-  for (std::size_t i = 1; i <= count; ++i) {
-    const std::string prefix = join_path(parts, i);
-    if (h5check(H5Lexists(file, prefix.c_str(), H5P_DEFAULT), "H5Lexists") > 0) continue;
-    H5GroupId group{h5check(H5Gcreate2(file, prefix.c_str(), H5P_DEFAULT, gcpl.get(), H5P_DEFAULT),
-                            "H5Gcreate2")};
-  }
+std::vector<hsize_t> shape(hsize_t rows, const std::vector<hsize_t>& row_dims) {
+  std::vector<hsize_t> dims{rows};
+  dims.insert(dims.end(), row_dims.begin(), row_dims.end());
+  return dims;
 }
 
-// Fixed-length UTF-8 string type of `length` bytes (at least one, so "" is storable).
-H5DatatypeId string_type(std::size_t length) {
-  H5DatatypeId type{h5check(H5Tcopy(H5T_C_S1), "H5Tcopy")};
-  h5check(H5Tset_size(type.get(), std::max<std::size_t>(length, 1)), "H5Tset_size");
-  h5check(H5Tset_strpad(type.get(), H5T_STR_NULLPAD), "H5Tset_strpad");
-  h5check(H5Tset_cset(type.get(), H5T_CSET_UTF8), "H5Tset_cset");
-  return type;
+H5DataspaceId simple_space(const std::vector<hsize_t>& dims, bool growable = false) {
+  std::vector<hsize_t> max = dims;
+  if (growable) max[0] = H5S_UNLIMITED;
+  return H5DataspaceId{h5check(
+      H5Screate_simple(static_cast<int>(dims.size()), dims.data(), max.data()),
+      "H5Screate_simple")};
 }
 
-void replace_attribute(hid_t object, const std::string& name, hid_t file_type, hid_t mem_type,
-                       const void* value) {
-  if (h5check(H5Aexists(object, name.c_str()), "H5Aexists") > 0) {
-    h5check(H5Adelete(object, name.c_str()), "H5Adelete");
-  }
-  const H5DataspaceId scalar{h5check(H5Screate(H5S_SCALAR), "H5Screate")};
-  const H5AttributeId attr{h5check(
-      H5Acreate2(object, name.c_str(), file_type, scalar.get(), H5P_DEFAULT, H5P_DEFAULT),
-      "H5Acreate2")};
-  h5check(H5Awrite(attr.get(), mem_type, value), "H5Awrite");
+// Selects rows [first, first + count) of a (rows, row_dims...) dataspace.
+void select_rows(hid_t space, hsize_t first, hsize_t count, const std::vector<hsize_t>& row_dims) {
+  std::vector<hsize_t> start(row_dims.size() + 1, 0);
+  start[0] = first;
+  const std::vector<hsize_t> block = shape(count, row_dims);
+  h5check(H5Sselect_hyperslab(space, H5S_SELECT_SET, start.data(), nullptr, block.data(), nullptr),
+          "H5Sselect_hyperslab");
 }
 
-void replace_string_attribute(hid_t object, const std::string& name, const std::string& value) {
-  const H5DatatypeId type = string_type(value.size());
-  replace_attribute(object, name, type.get(), type.get(), value.c_str());
-}
-
-// Chunk shape of a series (the reasons and the measurements are in h5_writer.hpp): rows of
-// 4 KiB or more make one chunk per time step, split along their widest axes if over 1 MiB;
-// narrower rows are grouped up to 4 KiB. A chunk left incomplete by a flush stays in the file
-// uncompressed at full size once it is complete, so incomplete chunks must stay small.
-std::vector<hsize_t> series_chunk(const std::vector<hsize_t>& row_dims) {
-  constexpr hsize_t kMaxChunkBytes = 1024 * 1024;
-  constexpr hsize_t kGroupBytes = 4 * 1024;
-  std::vector<hsize_t> chunk(1 + row_dims.size(), 1);
-  std::copy(row_dims.begin(), row_dims.end(), chunk.begin() + 1);
+// Chunk shape of a final series: rows grouped up to about 1 MiB; a row larger than that is
+// split along its widest axes.
+std::vector<hsize_t> chunk_shape(hsize_t rows, const std::vector<hsize_t>& row_dims) {
+  std::vector<hsize_t> chunk = shape(1, row_dims);
   const auto row_bytes = [&chunk] {
     hsize_t bytes = sizeof(double);
     for (std::size_t i = 1; i < chunk.size(); ++i) bytes *= chunk[i];
     return bytes;
   };
-  while (row_bytes() > kMaxChunkBytes) {
+  while (row_bytes() > kChunkBytes) {
     const auto widest = std::max_element(chunk.begin() + 1, chunk.end());
     *widest = (*widest + 1) / 2;
   }
-  chunk[0] = std::max<hsize_t>(1, kGroupBytes / row_bytes());
+  chunk[0] = std::max<hsize_t>(1, std::min(rows, kChunkBytes / row_bytes()));
   return chunk;
 }
 
-}  // namespace
-
-// =============================================================================================
-// H5Writer
-// =============================================================================================
-
-struct H5Writer::Series {
-  std::string path;
-  H5DatasetId dataset;
-  std::vector<hsize_t> row_dims;
-  std::size_t row_size = 1;     // doubles per row
-  hsize_t chunk_rows = 1;       // rows per chunk along time
-  hsize_t rows_in_file = 0;
-  std::vector<double> tail;     // rows of the last, incomplete chunk, already in the file
-  std::vector<double> pending;  // rows appended since the last flush, row-major
-};
-
-namespace {
-// Filter mask of H5Dwrite_chunk: bit i set skips filter i; the pipeline is shuffle, deflate.
-constexpr std::uint32_t kUnfiltered = 0x3;
-}  // namespace
-
-// Whole chunks go through the filters (shuffle, deflate) and are written once. The incomplete
-// last chunk is written unfiltered at full chunk size (rows not yet there hold the NaN fill),
-// so the next flush rewrites it in place -- same size, and the same bytes for the rows already
-// there, so even a torn write cannot harm them -- instead of leaving a compressed copy behind
-// at every flush (freed space is never reused, see the header).
-void H5Writer::write_rows(Series& s) {
-  if (s.pending.empty()) return;
-  const std::size_t width = s.row_size;
-  const hsize_t r = s.chunk_rows;
-  const hsize_t tail_rows = s.tail.size() / width;
-  const hsize_t new_rows = s.pending.size() / width;
-  const hsize_t start = s.rows_in_file - tail_rows;  // first row of the incomplete chunk
-  const hsize_t total = tail_rows + new_rows;
-  const hsize_t whole = total / r * r;
-
-  std::vector<double> rows = s.tail;
-  rows.insert(rows.end(), s.pending.begin(), s.pending.end());
-  std::vector<hsize_t> dims{s.rows_in_file + new_rows};
-  dims.insert(dims.end(), s.row_dims.begin(), s.row_dims.end());
-  h5check(H5Dset_extent(s.dataset.get(), dims.data()), "H5Dset_extent");
-
-  std::vector<hsize_t> offset(dims.size(), 0);
-  if (whole > 0) {
-    std::vector<hsize_t> count{whole};
-    count.insert(count.end(), s.row_dims.begin(), s.row_dims.end());
-    offset[0] = start;
-    const H5DataspaceId file_space{h5check(H5Dget_space(s.dataset.get()), "H5Dget_space")};
-    h5check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, offset.data(), nullptr,
-                                count.data(), nullptr),
-            "H5Sselect_hyperslab");
-    const H5DataspaceId mem_space{h5check(
-        H5Screate_simple(static_cast<int>(count.size()), count.data(), nullptr),
-        "H5Screate_simple")};
-    h5check(H5Dwrite(s.dataset.get(), H5T_NATIVE_DOUBLE, mem_space.get(), file_space.get(),
-                     H5P_DEFAULT, rows.data()),
-            "H5Dwrite");
-  }
-  if (total > whole) {
-    std::vector<double> chunk(r * width, std::numeric_limits<double>::quiet_NaN());
-    std::copy(rows.begin() + whole * width, rows.end(), chunk.begin());
-    offset[0] = start + whole;
-    h5check(H5Dwrite_chunk(s.dataset.get(), H5P_DEFAULT, kUnfiltered, offset.data(),
-                           chunk.size() * sizeof(double), chunk.data()),
-            "H5Dwrite_chunk");
-  }
-  s.tail.assign(rows.begin() + whole * width, rows.end());
-  s.rows_in_file += new_rows;
-  s.pending.clear();
+H5FileId create_file(const std::string& path) {
+  h5_silence_errors();
+  const H5PropListId fcpl = untimed(H5P_FILE_CREATE);
+  return H5FileId{
+      h5check(H5Fcreate(path.c_str(), H5F_ACC_TRUNC, fcpl.get(), H5P_DEFAULT), "H5Fcreate")};
 }
 
-H5Writer::H5Writer() = default;
-H5Writer::H5Writer(H5Writer&&) noexcept = default;
+void sync_path(const std::string& path, bool directory) {
+  const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC | (directory ? O_DIRECTORY : 0));
+  const bool ok = fd >= 0 && ::fsync(fd) == 0;
+  if (fd >= 0) ::close(fd);
+  if (!ok) throw LibraryError(errno_text("fsync", path));
+}
 
-H5Writer& H5Writer::operator=(H5Writer&& other) noexcept {
-  if (this != &other) {
-    try {
-      close();
-    } catch (...) {  // a failed close of the old file must not stop the move
-    }
-    series_ = std::move(other.series_);
-    file_ = std::move(other.file_);
+std::string folder_of(const std::string& path) {
+  const std::size_t slash = path.find_last_of('/');
+  return slash == std::string::npos ? "." : path.substr(0, slash + 1);
+}
+
+std::string name_of(const std::string& path) {
+  const std::size_t slash = path.find_last_of('/');
+  return slash == std::string::npos ? path : path.substr(slash + 1);
+}
+
+// Removes the regular files in `dir` and the folder itself; quiet when it does not exist.
+void remove_folder(const std::string& dir) {
+  DIR* d = ::opendir(dir.c_str());
+  if (d == nullptr) return;
+  while (const dirent* e = ::readdir(d)) {
+    const std::string n = e->d_name;
+    if (n != "." && n != "..") ::unlink((dir + "/" + n).c_str());
+  }
+  ::closedir(d);
+  ::rmdir(dir.c_str());
+}
+
+}  // namespace
+
+H5Writer::H5Writer(H5Writer&& o) noexcept
+    : path_(std::move(o.path_)),
+      parts_dir_(std::move(o.parts_dir_)),
+      parts_name_(std::move(o.parts_name_)),
+      options_(o.options_),
+      open_(std::exchange(o.open_, false)),
+      tree_(std::move(o.tree_)),
+      series_(std::move(o.series_)),
+      segments_(std::move(o.segments_)),
+      retired_(std::move(o.retired_)),
+      next_segment_(o.next_segment_),
+      resumed_from_(std::move(o.resumed_from_)) {}
+
+H5Writer& H5Writer::operator=(H5Writer&& o) noexcept {
+  if (this != &o) {  // the old file is left as the destructor leaves it
+    path_ = std::move(o.path_);
+    parts_dir_ = std::move(o.parts_dir_);
+    parts_name_ = std::move(o.parts_name_);
+    options_ = o.options_;
+    open_ = std::exchange(o.open_, false);
+    tree_ = std::move(o.tree_);
+    series_ = std::move(o.series_);
+    segments_ = std::move(o.segments_);
+    next_segment_ = o.next_segment_;
+    retired_ = std::move(o.retired_);
+    resumed_from_ = std::move(o.resumed_from_);
   }
   return *this;
 }
 
-H5Writer::~H5Writer() {
-  try {
-    close();
-  } catch (...) {  // destructors must not throw; call close() to see the error
-  }
+// Not closed: the owner failed before finishing. The file stays as the last flush left it, as
+// after a kill (resumable, never looking finished); rows since then are dropped.
+H5Writer::~H5Writer() = default;
+
+H5Writer H5Writer::create(const std::string& path, Options options) {
+  if (options.deflate_level < 0 || options.deflate_level > 9)
+    throw std::invalid_argument("H5Writer: deflate level must be 0..9");
+  H5Writer w;
+  w.path_ = path;
+  w.parts_dir_ = path + ".parts";
+  w.parts_name_ = name_of(path) + ".parts";
+  w.options_ = options;
+  remove_folder(w.parts_dir_);
+  if (::mkdir(w.parts_dir_.c_str(), 0777) != 0)
+    throw LibraryError(errno_text("mkdir", w.parts_dir_));
+  w.open_ = true;
+  w.publish_index();  // from here on `path` is a valid HDF5 file for any reader
+  return w;
 }
 
-H5Writer H5Writer::create(const std::string& path, Durability durability) {
+H5Writer H5Writer::resume(const std::string& path, Options options,
+                          const std::string& reference_series) {
   h5_silence_errors();
-  H5PropListId fcpl = untimed(H5P_FILE_CREATE);
-  // Never reuse freed space: committed bytes must stay as they are until nothing refers to them.
-  h5check(H5Pset_file_space_strategy(fcpl.get(), H5F_FSPACE_STRATEGY_NONE, 0, 1),
-          "H5Pset_file_space_strategy");
-  const H5PropListId fapl = plist(H5P_FILE_ACCESS);
-  const CommitDriverConfig config{durability == Durability::power_loss};
-  h5check(H5Pset_driver(fapl.get(), commit_driver(), &config), "H5Pset_driver");
-
-  H5Writer writer;
-  writer.file_ = H5FileId{h5check(
-      H5Fcreate(path.c_str(), H5F_ACC_TRUNC, fcpl.get(), fapl.get()), "H5Fcreate")};
-  writer.flush();  // from here on the file is a valid HDF5 file for any reader
-
-  if (durability == Durability::power_loss) {
-    // The new directory entry must survive too.
-    const std::size_t slash = path.find_last_of('/');
-    const std::string dir = slash == std::string::npos ? "." : path.substr(0, slash + 1);
-    const int fd = ::open(dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-    const bool synced = fd >= 0 && ::fsync(fd) == 0;
-    if (fd >= 0) ::close(fd);
-    if (!synced) throw LibraryError(errno_text("fsync of directory", dir));
+  H5Writer w;
+  w.path_ = path;
+  w.parts_dir_ = path + ".parts";
+  w.parts_name_ = name_of(path) + ".parts";
+  w.options_ = options;
+  const auto refuse = [&path](const std::string& why) {
+    return InputError("error: " + path + ": cannot resume: " + why + "\n");
+  };
+  struct stat st {};
+  if (::stat(w.parts_dir_.c_str(), &st) != 0 || !S_ISDIR(st.st_mode))
+    throw refuse("no folder " + w.parts_dir_ + " beside it (a finished run's file has none)");
+  const hid_t raw = H5Fopen(path.c_str(), H5F_ACC_RDONLY, H5P_DEFAULT);
+  if (raw < 0) throw refuse("not an HDF5 file");
+  const H5FileId file{raw};
+  const auto open_series = [&](const std::string& p) {
+    if (H5Lexists(file.get(), p.c_str(), H5P_DEFAULT) <= 0) throw refuse("no series " + p);
+    return H5DatasetId{h5check(H5Dopen2(file.get(), p.c_str(), H5P_DEFAULT), "H5Dopen2")};
+  };
+  // The segments, in order, from the reference series' virtual mapping.
+  {
+    const H5DatasetId ds = open_series(reference_series);
+    const H5PropListId dcpl{h5check(H5Dget_create_plist(ds.get()), "H5Dget_create_plist")};
+    if (H5Pget_layout(dcpl.get()) == H5D_VIRTUAL) {
+      std::size_t count = 0;
+      h5check(H5Pget_virtual_count(dcpl.get(), &count), "H5Pget_virtual_count");
+      std::vector<std::pair<hsize_t, Segment>> found;
+      for (std::size_t i = 0; i < count; ++i) {
+        const ssize_t len = H5Pget_virtual_filename(dcpl.get(), i, nullptr, 0);
+        std::string name(static_cast<std::size_t>(std::max<ssize_t>(len, 0)) + 1, '\0');
+        h5check(H5Pget_virtual_filename(dcpl.get(), i, name.data(), name.size()),
+                "H5Pget_virtual_filename");
+        name.resize(static_cast<std::size_t>(len));
+        const H5DataspaceId vspace{h5check(H5Pget_virtual_vspace(dcpl.get(), i),
+                                           "H5Pget_virtual_vspace")};
+        hsize_t lo[H5S_MAX_RANK], hi[H5S_MAX_RANK];
+        h5check(H5Sget_select_bounds(vspace.get(), lo, hi),
+                "H5Sget_select_bounds");
+        const std::string prefix = w.parts_name_ + "/";
+        if (name.compare(0, prefix.size(), prefix) != 0)
+          throw refuse("segment " + name + " is not in " + w.parts_dir_);
+        found.push_back({lo[0], Segment{name.substr(prefix.size()), hi[0] - lo[0] + 1}});
+      }
+      std::sort(found.begin(), found.end(),
+                [](const auto& a, const auto& b) { return a.first < b.first; });
+      for (auto& f : found) {
+        unsigned number = 0;
+        if (std::sscanf(f.second.name.c_str(), "seg-%u.h5", &number) == 1)
+          w.next_segment_ = std::max(w.next_segment_, number + 1);
+        w.segments_.push_back(std::move(f.second));
+      }
+    }
   }
-  return writer;
+  const H5DatasetId ds = open_series(reference_series);
+  const H5DataspaceId space{h5check(H5Dget_space(ds.get()), "H5Dget_space")};
+  hsize_t dims[H5S_MAX_RANK];
+  const int rank = h5check(H5Sget_simple_extent_dims(space.get(), dims, nullptr),
+                           "H5Sget_simple_extent_dims");
+  if (rank < 1 || dims[0] != w.published_rows())
+    throw refuse(reference_series + " does not match its segments");
+  w.resumed_from_ = path;
+  w.open_ = true;
+  return w;
 }
 
 void H5Writer::require_open(const char* what) const {
-  if (!file_) throw std::logic_error(std::string("H5Writer::") + what + " on a closed file");
+  if (!open_) throw std::logic_error(std::string("H5Writer::") + what + " on a closed file");
 }
 
-void H5Writer::write_fixed(const std::string& path, const std::vector<hsize_t>& dims,
-                           const void* data, hid_t mem_type, hid_t file_type,
-                           const std::string& units) {
-  require_open("write_array");
-  const auto parts = split_path(path);
-  if (parts.empty()) throw std::invalid_argument("H5Writer::write_array: empty dataset path");
-  make_groups(file_.get(), parts, parts.size() - 1);
-  const H5DataspaceId space{h5check(
-      dims.empty() ? H5Screate(H5S_SCALAR)
-                   : H5Screate_simple(static_cast<int>(dims.size()), dims.data(), nullptr),
-      "H5Screate_simple")};
-  const H5PropListId dcpl = untimed(H5P_DATASET_CREATE);
-  const H5DatasetId dataset{h5check(H5Dcreate2(file_.get(), join_path(parts, parts.size()).c_str(),
-                                               file_type, space.get(), H5P_DEFAULT, dcpl.get(),
-                                               H5P_DEFAULT),
-                                    "H5Dcreate2")};
-  hsize_t count = 1;
-  for (const hsize_t d : dims) count *= d;
-  if (count > 0) {
-    h5check(H5Dwrite(dataset.get(), mem_type, H5S_ALL, H5S_ALL, H5P_DEFAULT, data), "H5Dwrite");
-  }
-  replace_string_attribute(dataset.get(), "units", units);
+std::string H5Writer::part(const std::string& name) const { return parts_dir_ + "/" + name; }
+
+hsize_t H5Writer::published_rows() const {
+  hsize_t rows = 0;
+  for (const Segment& s : segments_) rows += s.rows;
+  return rows;
 }
 
 void H5Writer::write_array(const std::string& path, const std::vector<hsize_t>& dims,
                            const double* data, const std::string& units) {
-  write_fixed(path, dims, data, H5T_NATIVE_DOUBLE, H5T_IEEE_F64LE, units);
+  require_open("write_array");
+  tree_.put_array(path, dims, data, units);
 }
 
 void H5Writer::write_array(const std::string& path, const std::vector<hsize_t>& dims,
                            const long long* data, const std::string& units) {
-  write_fixed(path, dims, data, H5T_NATIVE_LLONG, H5T_STD_I64LE, units);
+  require_open("write_array");
+  tree_.put_array(path, dims, data, units);
 }
 
 void H5Writer::write_string(const std::string& path, const std::string& text) {
   require_open("write_string");
-  const auto parts = split_path(path);
-  if (parts.empty()) throw std::invalid_argument("H5Writer::write_string: empty dataset path");
-  make_groups(file_.get(), parts, parts.size() - 1);
-  const H5DatatypeId type = string_type(text.size());
-  const H5DataspaceId scalar{h5check(H5Screate(H5S_SCALAR), "H5Screate")};
-  const H5PropListId dcpl = untimed(H5P_DATASET_CREATE);
-  const H5DatasetId dataset{h5check(H5Dcreate2(file_.get(), join_path(parts, parts.size()).c_str(),
-                                               type.get(), scalar.get(), H5P_DEFAULT, dcpl.get(),
-                                               H5P_DEFAULT),
-                                    "H5Dcreate2")};
-  h5check(H5Dwrite(dataset.get(), type.get(), H5S_ALL, H5S_ALL, H5P_DEFAULT, text.c_str()),
-          "H5Dwrite");
+  tree_.put_string(path, text);
 }
 
-namespace {
-// Open the group or dataset at `object_path`, creating missing groups (the root is "/").
-H5ObjectId open_object(hid_t file, const std::string& object_path) {
-  const auto parts = split_path(object_path);
-  make_groups(file, parts, parts.size());
-  return H5ObjectId{h5check(H5Oopen(file, join_path(parts, parts.size()).c_str(), H5P_DEFAULT),
-                            "H5Oopen")};
+void H5Writer::erase(const std::string& path) {
+  require_open("erase");
+  tree_.erase(path);
 }
-}  // namespace
 
 void H5Writer::set_attribute(const std::string& object_path, const std::string& name,
                              double value) {
   require_open("set_attribute");
-  const H5ObjectId object = open_object(file_.get(), object_path);
-  replace_attribute(object.get(), name, H5T_IEEE_F64LE, H5T_NATIVE_DOUBLE, &value);
-}
-
-void H5Writer::set_integer_attribute(const std::string& object_path, const std::string& name,
-                                     long long value) {
-  require_open("set_attribute");
-  const H5ObjectId object = open_object(file_.get(), object_path);
-  replace_attribute(object.get(), name, H5T_STD_I64LE, H5T_NATIVE_LLONG, &value);
+  tree_.put_attribute(object_path, name, value);
 }
 
 void H5Writer::set_attribute(const std::string& object_path, const std::string& name,
                              const std::string& value) {
   require_open("set_attribute");
-  const H5ObjectId object = open_object(file_.get(), object_path);
-  replace_string_attribute(object.get(), name, value);
+  tree_.put_attribute(object_path, name, value);
 }
 
 H5Writer::SeriesId H5Writer::create_series(const std::string& path,
                                            const std::vector<hsize_t>& row_dims,
                                            const std::string& units) {
   require_open("create_series");
-  const auto parts = split_path(path);
-  if (parts.empty()) throw std::invalid_argument("H5Writer::create_series: empty path");
-  Series series;
-  series.path = join_path(parts, parts.size());
-  series.row_dims = row_dims;
+  Series s;
+  s.path = path;
+  s.row_dims = row_dims;
   for (const hsize_t d : row_dims) {
-    if (d == 0) throw std::invalid_argument("H5Writer::create_series: zero row extent in " + path);
-    series.row_size *= static_cast<std::size_t>(d);
+    if (d < 1) throw std::invalid_argument("H5Writer::create_series: empty row dimension");
+    s.row_size *= d;
   }
-  make_groups(file_.get(), parts, parts.size() - 1);
-
-  std::vector<hsize_t> dims{0}, max_dims{H5S_UNLIMITED};
-  dims.insert(dims.end(), row_dims.begin(), row_dims.end());
-  max_dims.insert(max_dims.end(), row_dims.begin(), row_dims.end());
-  const H5DataspaceId space{h5check(
-      H5Screate_simple(static_cast<int>(dims.size()), dims.data(), max_dims.data()),
-      "H5Screate_simple")};
-
-  const std::vector<hsize_t> chunk = series_chunk(row_dims);
-  const H5PropListId dcpl = untimed(H5P_DATASET_CREATE);
-  h5check(H5Pset_chunk(dcpl.get(), static_cast<int>(chunk.size()), chunk.data()), "H5Pset_chunk");
-  h5check(H5Pset_shuffle(dcpl.get()), "H5Pset_shuffle");
-  h5check(H5Pset_deflate(dcpl.get(), 4), "H5Pset_deflate");  // level 4: h5py's gzip default
-  const double fill = std::numeric_limits<double>::quiet_NaN();  // unwritten rows read as NaN
-  h5check(H5Pset_fill_value(dcpl.get(), H5T_NATIVE_DOUBLE, &fill), "H5Pset_fill_value");
-
-  // Room for several chunks per series, fully written ones evicted first (w0 = 1).
-  hsize_t chunk_bytes = sizeof(double);
-  for (const hsize_t c : chunk) chunk_bytes *= c;
-  const H5PropListId dapl = plist(H5P_DATASET_ACCESS);
-  h5check(H5Pset_chunk_cache(dapl.get(), 521, std::max<hsize_t>(1024 * 1024, 4 * chunk_bytes), 1.0),
-          "H5Pset_chunk_cache");
-
-  // Stored as native doubles (IEEE little-endian here): the unfiltered tail chunk is written
-  // with H5Dwrite_chunk, as raw bytes, so file and memory layout must agree.
-  series.chunk_rows = chunk[0];
-  series.dataset = H5DatasetId{h5check(H5Dcreate2(file_.get(), series.path.c_str(),
-                                                  H5T_NATIVE_DOUBLE, space.get(), H5P_DEFAULT,
-                                                  dcpl.get(), dapl.get()),
-                                       "H5Dcreate2")};
-  replace_string_attribute(series.dataset.get(), "units", units);
-  series_.push_back(std::move(series));
+  for (const Series& other : series_)
+    if (other.path == path) throw std::invalid_argument("H5Writer: series " + path + " twice");
+  if (!resumed_from_.empty()) {
+    // A resumed file must hold this series with this row shape and the common length.
+    const std::string& file_path = resumed_from_;
+    const H5FileId file{h5check(H5Fopen(file_path.c_str(), H5F_ACC_RDONLY, H5P_DEFAULT),
+                                "H5Fopen")};
+    const auto mismatch = [&](const std::string& why) {
+      return InputError("error: " + file_path + ": cannot resume: series " + path + " " + why +
+                        " (not the same run)\n");
+    };
+    if (H5Lexists(file.get(), path.c_str(), H5P_DEFAULT) <= 0) throw mismatch("is missing");
+    const H5DatasetId ds{h5check(H5Dopen2(file.get(), path.c_str(), H5P_DEFAULT), "H5Dopen2")};
+    const H5DataspaceId space{h5check(H5Dget_space(ds.get()), "H5Dget_space")};
+    hsize_t dims[H5S_MAX_RANK];
+    const int rank = h5check(H5Sget_simple_extent_dims(space.get(), dims, nullptr),
+                             "H5Sget_simple_extent_dims");
+    if (std::vector<hsize_t>(dims, dims + rank) != shape(published_rows(), row_dims))
+      throw mismatch("has another shape");
+  }
+  series_.push_back(std::move(s));
+  tree_.put_attribute(path, "units", units);
   return SeriesId{series_.size() - 1};
 }
 
@@ -372,21 +321,223 @@ void H5Writer::append(SeriesId id, const double* rows, std::size_t nrows) {
 
 std::size_t H5Writer::length(SeriesId id) const {
   const Series& s = series_.at(id.index);
-  return static_cast<std::size_t>(s.rows_in_file) + s.pending.size() / s.row_size;
+  return published_rows() + s.pending.size() / s.row_size;
+}
+
+std::size_t H5Writer::pending_bytes() const {
+  std::size_t bytes = 0;
+  for (const Series& s : series_) bytes += s.pending.size() * sizeof(double);
+  return bytes;
+}
+
+std::string H5Writer::next_segment_name() {
+  char name[32];
+  std::snprintf(name, sizeof name, "seg-%06u.h5", next_segment_++);
+  return name;
+}
+
+namespace {
+// Writes one segment file: each series' rows (row-major, `rows` of them) as a contiguous
+// dataset at the series' path; closed before returning.
+template <class Series, class RowsOf>
+void write_segment_file(const std::string& file_path, const std::vector<Series>& series,
+                        hsize_t rows, RowsOf rows_of) {
+  H5FileId file = create_file(file_path);
+  const H5PropListId dcpl = untimed(H5P_DATASET_CREATE);
+  for (std::size_t i = 0; i < series.size(); ++i) {
+    const Series& s = series[i];
+    h5_make_parents(file.get(), s.path);
+    const H5DataspaceId space = simple_space(shape(rows, s.row_dims));
+    const H5DatasetId ds{h5check(H5Dcreate2(file.get(), s.path.c_str(), H5T_IEEE_F64LE,
+                                            space.get(), H5P_DEFAULT, dcpl.get(), H5P_DEFAULT),
+                                 "H5Dcreate2")};
+    h5check(H5Dwrite(ds.get(), H5T_NATIVE_DOUBLE, H5S_ALL, H5S_ALL, H5P_DEFAULT, rows_of(i)),
+            "H5Dwrite");
+  }
+  file.close("H5Fclose");
+}
+
+// Reads all rows of `dataset` in the segment file `file` into `out`.
+void read_segment(hid_t file, const std::string& dataset, std::vector<double>& out) {
+  const H5DatasetId src{h5check(H5Dopen2(file, dataset.c_str(), H5P_DEFAULT), "H5Dopen2")};
+  const H5DataspaceId space{h5check(H5Dget_space(src.get()), "H5Dget_space")};
+  out.resize(static_cast<std::size_t>(
+      h5check(H5Sget_simple_extent_npoints(space.get()), "H5Sget_simple_extent_npoints")));
+  if (!out.empty())
+    h5check(H5Dread(src.get(), H5T_NATIVE_DOUBLE, H5S_ALL, H5S_ALL, H5P_DEFAULT, out.data()),
+            "H5Dread");
+}
+}  // namespace
+
+void H5Writer::write_segment() {
+  if (series_.empty()) return;
+  const hsize_t rows = series_.front().pending.size() / series_.front().row_size;
+  for (const Series& s : series_)
+    if (s.pending.size() / s.row_size != rows)
+      throw std::logic_error("H5Writer::flush: series " + s.path + " is not as long as " +
+                             series_.front().path);
+  if (rows == 0) return;
+  const std::string name = next_segment_name();
+  write_segment_file(part(name), series_, rows,
+                     [this](std::size_t i) { return series_[i].pending.data(); });
+  if (options_.durability == Durability::power_loss) sync_path(part(name), false);
+  segments_.push_back(Segment{name, rows, 0});
+  for (Series& s : series_) s.pending.clear();
+  merge_tail();
+}
+
+void H5Writer::merge_tail() {
+  while (segments_.size() >= kMergeFanIn) {
+    const std::size_t first = segments_.size() - kMergeFanIn;
+    const int level = segments_.back().level;
+    bool same = true;
+    for (std::size_t k = first; k < segments_.size(); ++k) same = same && segments_[k].level == level;
+    if (!same) return;
+    hsize_t rows = 0;
+    std::vector<H5FileId> sources;
+    for (std::size_t k = first; k < segments_.size(); ++k) {
+      rows += segments_[k].rows;
+      sources.emplace_back(h5check(
+          H5Fopen(part(segments_[k].name).c_str(), H5F_ACC_RDONLY, H5P_DEFAULT), "H5Fopen"));
+    }
+    std::vector<std::vector<double>> joined(series_.size());
+    std::vector<double> buffer;
+    for (std::size_t i = 0; i < series_.size(); ++i)
+      for (const H5FileId& f : sources) {
+        read_segment(f.get(), series_[i].path, buffer);
+        joined[i].insert(joined[i].end(), buffer.begin(), buffer.end());
+      }
+    sources.clear();
+    const std::string name = next_segment_name();
+    write_segment_file(part(name), series_, rows,
+                       [&joined](std::size_t i) { return joined[i].data(); });
+    if (options_.durability == Durability::power_loss) sync_path(part(name), false);
+    const double now = steady_seconds();
+    for (std::size_t k = first; k < segments_.size(); ++k) retired_.push_back({segments_[k].name, now});
+    segments_.resize(first);
+    segments_.push_back(Segment{name, rows, level + 1});
+  }
+}
+
+void H5Writer::delete_retired(bool all) {
+  const double now = steady_seconds();
+  auto keep = retired_.begin();
+  for (const Retired& r : retired_) {
+    if (all || now - r.since_s >= kRetireSeconds)
+      ::unlink(part(r.name).c_str());
+    else
+      *keep++ = r;
+  }
+  retired_.erase(keep, retired_.end());
+}
+
+void H5Writer::publish_index() {
+  const std::string tmp = part("index.tmp");
+  {
+    H5FileId file = create_file(tmp);
+    tree_.write_datasets(file.get());
+    const hsize_t rows = published_rows();
+    for (const Series& s : series_) {
+      h5_make_parents(file.get(), s.path);
+      const H5PropListId dcpl = untimed(H5P_DATASET_CREATE);
+      const double nan = std::numeric_limits<double>::quiet_NaN();
+      h5check(H5Pset_fill_value(dcpl.get(), H5T_NATIVE_DOUBLE, &nan), "H5Pset_fill_value");
+      const std::vector<hsize_t> dims = shape(rows, s.row_dims);
+      if (rows == 0) {
+        // No rows yet: an empty, growable dataset of the right shape (a VDS needs a source).
+        h5check(H5Pset_chunk(dcpl.get(), static_cast<int>(dims.size()),
+                             chunk_shape(1, s.row_dims).data()),
+                "H5Pset_chunk");
+      } else {
+        hsize_t first = 0;
+        for (const Segment& seg : segments_) {
+          const H5DataspaceId vspace = simple_space(dims);
+          select_rows(vspace.get(), first, seg.rows, s.row_dims);
+          const H5DataspaceId sspace = simple_space(shape(seg.rows, s.row_dims));
+          const std::string source = parts_name_ + "/" + seg.name;
+          h5check(H5Pset_virtual(dcpl.get(), vspace.get(), source.c_str(), s.path.c_str(),
+                                 sspace.get()),
+                  "H5Pset_virtual");
+          first += seg.rows;
+        }
+      }
+      const H5DataspaceId space = simple_space(dims, rows == 0);
+      const H5DatasetId ds{h5check(H5Dcreate2(file.get(), s.path.c_str(), H5T_IEEE_F64LE,
+                                              space.get(), H5P_DEFAULT, dcpl.get(), H5P_DEFAULT),
+                                   "H5Dcreate2")};
+    }
+    tree_.write_attributes(file.get());
+    file.close("H5Fclose");
+  }
+  if (options_.durability == Durability::power_loss) sync_path(tmp, false);
+  if (std::rename(tmp.c_str(), path_.c_str()) != 0)
+    throw LibraryError(errno_text("rename to", path_));
+  if (options_.durability == Durability::power_loss) sync_path(folder_of(path_), true);
 }
 
 void H5Writer::flush() {
   require_open("flush");
-  for (Series& s : series_) write_rows(s);
-  // Writes the library's dirty state; the driver's flush callback then commits it in order.
-  h5check(H5Fflush(file_.get(), H5F_SCOPE_GLOBAL), "H5Fflush");
+  write_segment();
+  publish_index();
+  delete_retired(false);
+}
+
+void H5Writer::write_final() {
+  const std::string tmp = part("final.tmp");
+  H5FileId file = create_file(tmp);
+  tree_.write_datasets(file.get());
+  const hsize_t flushed = published_rows();
+  std::vector<H5FileId> sources;
+  for (const Segment& seg : segments_)
+    sources.emplace_back(
+        h5check(H5Fopen(part(seg.name).c_str(), H5F_ACC_RDONLY, H5P_DEFAULT), "H5Fopen"));
+  std::vector<double> buffer;
+  for (const Series& s : series_) {
+    const hsize_t rows = flushed + s.pending.size() / s.row_size;
+    h5_make_parents(file.get(), s.path);
+    const H5PropListId dcpl = untimed(H5P_DATASET_CREATE);
+    const std::vector<hsize_t> chunk = chunk_shape(std::max<hsize_t>(rows, 1), s.row_dims);
+    h5check(H5Pset_chunk(dcpl.get(), static_cast<int>(chunk.size()), chunk.data()),
+            "H5Pset_chunk");
+    if (options_.deflate_level > 0) {
+      h5check(H5Pset_shuffle(dcpl.get()), "H5Pset_shuffle");
+      h5check(H5Pset_deflate(dcpl.get(), static_cast<unsigned>(options_.deflate_level)),
+              "H5Pset_deflate");
+    }
+    const H5DataspaceId space = simple_space(shape(rows, s.row_dims), true);
+    const H5DatasetId ds{h5check(H5Dcreate2(file.get(), s.path.c_str(), H5T_IEEE_F64LE,
+                                            space.get(), H5P_DEFAULT, dcpl.get(), H5P_DEFAULT),
+                                 "H5Dcreate2")};
+    hsize_t first = 0;
+    const auto put = [&](const double* data, hsize_t n) {
+      if (n == 0) return;
+      const H5DataspaceId file_space{h5check(H5Dget_space(ds.get()), "H5Dget_space")};
+      select_rows(file_space.get(), first, n, s.row_dims);
+      const H5DataspaceId mem = simple_space(shape(n, s.row_dims));
+      h5check(H5Dwrite(ds.get(), H5T_NATIVE_DOUBLE, mem.get(), file_space.get(), H5P_DEFAULT,
+                       data),
+              "H5Dwrite");
+      first += n;
+    };
+    for (std::size_t k = 0; k < segments_.size(); ++k) {
+      read_segment(sources[k].get(), s.path, buffer);
+      put(buffer.data(), segments_[k].rows);
+    }
+    put(s.pending.data(), s.pending.size() / s.row_size);
+  }
+  tree_.write_attributes(file.get());
+  file.close("H5Fclose");
+  if (options_.durability == Durability::power_loss) sync_path(tmp, false);
+  if (std::rename(tmp.c_str(), path_.c_str()) != 0)
+    throw LibraryError(errno_text("rename to", path_));
+  if (options_.durability == Durability::power_loss) sync_path(folder_of(path_), true);
 }
 
 void H5Writer::close() {
-  if (!file_) return;
-  flush();
-  for (Series& s : series_) s.dataset.close("H5Dclose");
-  file_.close("H5Fclose");
+  if (!open_) return;
+  open_ = false;  // a failure below leaves the last published index as the file
+  write_final();
+  remove_folder(parts_dir_);
 }
 
 }  // namespace hawser

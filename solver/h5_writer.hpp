@@ -1,90 +1,67 @@
 #pragma once
-// H5Writer: writes one HDF5 result file (fixed arrays, strings, attributes, and time series that
-// grow along their first axis) that other processes can read while it is written and that
-// survives the writer being killed.
+// H5Writer: writes one HDF5 result file (fixed arrays, strings, attributes, and time series
+// that grow along their first axis) that other processes can read while it is written, that
+// survives the writer being killed, and that a later process can continue (resume). It uses
+// the HDF5 library's public API only, and nothing of the file format's internals.
 //
 // The guarantee
-//   After flush() returns, everything written so far is in the file, and at every later moment
-//   (writer running, writer inside the next flush, writer killed by SIGKILL anywhere) a plain
-//   reader -- h5py.File(path, "r"), or any HDF5 >= 1.8 with its default driver, no SWMR, no
-//   h5clear -- opens the file and reads all of it. Rows appended after the last flush may or
-//   may not be there yet.
+//   At every moment the file at `path` is a complete, closed HDF5 file: a plain reader
+//   (h5py.File(path, "r"), h5dump, any HDF5 >= 1.10 with its default driver; no SWMR mode, no
+//   h5clear) opens it and reads everything up to the last flush(). After flush() returns, the
+//   rows appended so far are in it; rows appended since may or may not be. This holds while
+//   the writer runs, after SIGKILL at any instant, and (with Durability::power_loss) after the
+//   machine stops.
 //
-// Why not the obvious designs (measured with HDF5 1.10.8 and h5py 3.7)
-//   * Plain HDF5 holds an flock on a file open for writing: live readers fail ("unable to lock
-//     file"). We take no lock; there is one writer.
-//   * SWMR needs superblock v3, whose "open for write" flag blocks plain opens while the writer
-//     runs and after a kill ("file is already open for write ... h5clear").
-//   * Plain non-SWMR HDF5 is consistent only between flushes. Recording every write(2) of such a
-//     run and rebuilding the file before each one, 107 of 177 crash points were unreadable:
-//     the library rewrites a grown compressed chunk into space it freed a moment before
-//     ("inflate() failed"), and writes B-tree nodes before the superblock's end of allocation
-//     ("addr overflow", "truncated file"). Live readers fail the same way.
+// The design: segments, a published index file, one file at the end
+//   * Rows appended between two flushes are kept in memory. flush() writes them to a new
+//     segment file `<path>.parts/seg-NNNNNN.h5` (one contiguous dataset per series, at the
+//     series' path) and closes it: once closed, a segment is never written again.
+//   * flush() then publishes the index: a new file written beside the old one
+//     (`<path>.parts/index.tmp`), holding the fixed objects and, for each series, an HDF5
+//     virtual dataset (VDS, HDF5 >= 1.10) that maps the segments' rows into one dataset of the
+//     contract's name and shape; rename(2) puts it at `path` in one atomic step. A reader
+//     sees the old index or the new one, never a mixture; one that keeps the old index open
+//     keeps reading it (the segments it names stay until close()).
+//   * close() writes the final file: every series as one ordinary chunked dataset (compressed
+//     if asked), the fixed objects, the attributes; renames it over the index and deletes the
+//     segments. The finished file needs no other file.
+//   Source file names in the index are relative ("run.h5.parts/seg-000001.h5"): HDF5 resolves
+//   them against the directory of the index file, so a killed run's file and its .parts folder
+//   can be moved together.
 //
-// The design: an ordered commit under the library (the driver in h5_commit_driver.cpp)
-//   1. No reuse: freed space is dropped (file space strategy NONE) and the end of allocation
-//      never drops below the last commit, so bytes a committed state (or a reader's cached copy
-//      of it) refers to are never overwritten with other data.
-//   2. Bytes past the committed end go to disk at once (nothing committed points there); every
-//      overwrite of committed bytes is held in memory until flush().
-//   3. flush() commits so that each step leaves a readable file: the new bytes are made durable;
-//      then the superblock; then local heaps (names before the nodes using them); B-tree nodes,
-//      parents before children (a split adds the new sibling to the parent before the old node
-//      drops the moved entries); raw-data overwrites; object headers last, which is where a
-//      dataset's new length appears. Object headers go in descending address order, so the
-//      series created first (/time, by convention) is committed last: after any crash its
-//      length is <= every other series' length, and it is the safe number of rows to read.
-//   4. Metadata that may be overwritten is placed within one 4 KiB page (the driver's allocator):
-//      a killed process's write(2) stops only between pages, so no overwrite is torn.
-//   5. The superblock on disk claims an end of allocation well past the real one (twice it, at
-//      least 16 MiB more; the file is grown sparsely to match, and cut to the true end at
-//      close). A reader keeps the end it read at open; without the reserve, a reader that keeps
-//      the file open across a commit finds newer metadata pointing past it (measured: every
-//      such read failed). With it, only a reader open across a doubling of the file can.
-//   6. A B-tree split moves the last entries of a full node to a new sibling: the parent gains
-//      the sibling, the old node loses the entries. A live reader that read the parent before
-//      the commit and the node after it would lose committed rows (measured: 10 of 272 reads of
-//      the newest rows did). So a node image with fewer entries at the same level is kept in
-//      memory (a few kB per split) and written only at close: the old, longer node stays valid
-//      beside either parent. A killed file therefore lists those chunks twice in its chunk
-//      index (h5py's get_num_chunks counts them); reads are right, and a copy (h5py's copy,
-//      h5repack) is clean.
-//   7. Durability::process_kill (the default) is all a killed process needs: the kernel keeps
-//      its writes, in order. Durability::power_loss adds fdatasync between those steps (4 to 6
-//      a flush), so the same holds if the machine stops.
-//   The driver is written against the HDF5 1.10 virtual file layer (H5FD_class_t changed in
-//   1.12 and later). Checked by tests/cli/test_h5_live_read.py: live reads (also of a file
-//   held open across commits, and back-to-back reads of the newest rows), random SIGKILLs, and
-//   every crash point of a recorded run rebuilt and opened with h5py.
+// Why this design (measured with HDF5 1.10.8 and 1.14.5, h5py 3.7 and 3.12)
+//   * Stock HDF5 writing in place is consistent only between flushes: a reader during a write,
+//     or a file killed in one, may find metadata pointing at bytes not yet written. Plain
+//     HDF5 also holds a lock on a file open for writing, so live readers fail.
+//   * SWMR (single writer, multiple readers) sets a flag in the superblock while the writer
+//     runs and after a kill: every reader must open in SWMR mode, a plain h5py.File(path)
+//     fails until `h5clear -s`, and continuing the file after a kill needs that flag cleared,
+//     which the public API cannot do; attributes (the run's status) cannot be created while
+//     in SWMR mode.
+//   * Closed files and rename(2) need nothing of the library but its public API and give
+//     plain readers a consistent file at every instant, also across HDF5 versions.
+//   The previous design, a custom virtual-file driver ordering commits under HDF5 1.10,
+//   depended on one release's driver struct and failed at run time on HDF5 1.14.
 //
-// Chunks
-//   Series are chunked along time, shuffled and deflated (level 4). A chunk that a flush leaves
-//   incomplete is written unfiltered at full size, so that later flushes rewrite it in place
-//   (same size; the bytes of rows already there unchanged, so even a torn write is harmless);
-//   once complete it is written compressed, once, elsewhere -- its unfiltered copy stays behind
-//   (point 1). Hence small chunks: rows of 4 KiB or more get one chunk per time step (never
-//   incomplete), narrower rows chunks of about 4 KiB. The file then exceeds the compressed data
-//   by at most the raw size of the narrow series plus metadata. Measured (1000 or 100 nodes,
-//   positions, velocities, tensions, 7 scalar series, 2000 outputs): 0-19% over a compact copy
-//   with flushes every 1 or 10 outputs, where chunks of several rows sized 64 KiB (the usual
-//   advice) gave 6-1778% (rewritten compressed) or 11-128% (unfiltered). Reading a whole series
-//   took as long at 1000 nodes and twice as long at 100 nodes (43 against 20 ms for 2000 rows);
-//   a snapshot is one chunk.
+// Segments stay few: each flush adds one, and whenever the last kMergeFanIn (8) segments are
+// of one level they are merged into one of the next level (tiered, as log-structured stores
+// do). So a run of F flushes has at most 7 log8(F) + 1 segments (about 30 for a week of
+// flushes every 10 s), a reader opens that many files at most, and each row is copied
+// log8(F) times at most. Merged segments leave the index at once but stay on disk for
+// kRetireSeconds (60 s), so that a reader holding an older index open can finish reading it.
 //
-// What a live reader sees: each dataset as of its first access; rows past a dataset's length
-// as seen by another dataset may read as NaN (the fill value) until the reader reopens.
+// Costs: a flush writes the new rows once, uncompressed, plus an index of a few kB per series
+// and segment; close() copies every row once more into the final file. Flushes are the
+// caller's policy (the run driver flushes by wall-time interval). Measured figures: README,
+// "Result files".
 //
-// Residual risks, accepted: a reader that reads a page at the very instant the writer rewrites
-// it may see half of it (reopen and read again); a file that grows past its reserve while a
-// reader keeps it open fails for that reader (reopen); after a crash the file keeps its sparse
-// reserve (the apparent size is larger than the data on disk).
+// Residual risk, accepted: a reader holding an index that close() then replaces reads NaN (the
+// fill value of a virtual dataset whose source file is gone) for rows it had not read before
+// the segments were removed: it sees status "running" and NaN rows, and on reopening finds the
+// finished file. Readers of a live run should reopen when they find NaN rows. The same holds
+// for an index held open for more than 60 s across merges.
 //
-// Costs (1000 nodes, load as above, flush every 4 outputs, on a busy 2-core VM): 9-10 ms per
-// flush with process_kill, against 14.5 ms for stock HDF5 writing the same chunks unsafely (it
-// compresses incomplete chunks too); power_loss took 26-41 ms, the fdatasync calls dominating.
-//
-// Strings (attributes, write_string) are fixed-length UTF-8, stored inline, so that replacing
-// one (the `status` attribute) is one overwrite; h5py returns them as bytes (decode("utf-8")).
+// Strings (attributes, write_string) are fixed-length UTF-8; h5py returns them as bytes.
 // Every dataset made by write_array or create_series carries a `units` attribute.
 #include <hdf5.h>
 
@@ -93,7 +70,7 @@
 #include <type_traits>
 #include <vector>
 
-#include "solver/h5_handles.hpp"
+#include "solver/h5_tree.hpp"
 
 namespace hawser {
 
@@ -104,32 +81,49 @@ class H5Writer {
     std::size_t index;
   };
 
-  /// What flush() must survive: the writer process being killed, or the machine stopping
-  /// (fdatasync between commit steps: much slower flushes).
+  /// What a flush must survive: the writer process being killed (the kernel keeps what was
+  /// written), or the machine stopping (fsync of each file and folder before the rename).
   enum class Durability { process_kill, power_loss };
 
-  /// Create (or truncate) the file at `path`; throws LibraryError naming the failed call.
-  static H5Writer create(const std::string& path,
-                         Durability durability = Durability::process_kill);
+  struct Options {
+    Durability durability = Durability::process_kill;
+    /// Compression of the series in the final file: 0 none, 1..9 shuffle + deflate level.
+    int deflate_level = 0;
+  };
+
+  /// Start the file at `path` (an existing file there is replaced at the first flush; a
+  /// left-over `<path>.parts` folder is cleared). The file exists when create returns.
+  static H5Writer create(const std::string& path, Options options);
+  static H5Writer create(const std::string& path) { return create(path, Options{}); }
+
+  /// Continue a file left by a killed writer: its series' rows so far stay, new rows are
+  /// appended. The caller then rewrites the fixed objects and creates the same series (by
+  /// path) as the first writer did; `reference_series` names one of them ("/time").
+  /// Throws InputError when `path` is not such a file.
+  static H5Writer resume(const std::string& path, Options options,
+                         const std::string& reference_series);
 
   H5Writer(H5Writer&&) noexcept;
   H5Writer& operator=(H5Writer&&) noexcept;
   H5Writer(const H5Writer&) = delete;
   H5Writer& operator=(const H5Writer&) = delete;
-  /// Flushes and closes; errors are swallowed here, so call close() to see them.
+  /// Without close(): the file stays as the last flush left it, as after a kill (resumable,
+  /// never looking finished); rows appended since are dropped.
   ~H5Writer();
 
-  /// Fixed dataset of shape `dims` (row-major `data`), creating missing groups on the way
-  /// ("/mesh/s0" creates "/mesh"). `units` is stored as attribute "units" ("1": dimensionless).
+  /// Fixed dataset of shape `dims` (row-major `data`); replaces one of the same path.
+  /// `units` is stored as attribute "units" ("1": dimensionless).
   void write_array(const std::string& path, const std::vector<hsize_t>& dims, const double* data,
                    const std::string& units);
   void write_array(const std::string& path, const std::vector<hsize_t>& dims,
                    const long long* data, const std::string& units);
   /// Scalar fixed-length UTF-8 string dataset (e.g. the scenario text as run).
   void write_string(const std::string& path, const std::string& text);
+  /// Removes a fixed dataset or group and everything below it (not series).
+  void erase(const std::string& path);
 
   /// Attribute `name` on the group or dataset at `object_path` ("/" is the root); a missing
-  /// object is created as a group. An existing attribute of that name is replaced.
+  /// object is made a group. An existing attribute of that name is replaced.
   void set_attribute(const std::string& object_path, const std::string& name, double value);
   void set_attribute(const std::string& object_path, const std::string& name,
                      const std::string& value);
@@ -140,38 +134,67 @@ class H5Writer {
   template <class Int, std::enable_if_t<std::is_integral<Int>::value, int> = 0>
   void set_attribute(const std::string& object_path, const std::string& name, Int value) {
     static_assert(!std::is_same<Int, bool>::value, "store flags as integers 0/1 explicitly");
-    set_integer_attribute(object_path, name, static_cast<long long>(value));
+    tree_.put_attribute(object_path, name, static_cast<long long>(value));
   }
 
-  /// Extendible dataset of shape (0, row_dims...), time as first axis (unlimited), chunked
-  /// along time, shuffled and deflated, with attribute `units`. Every entry of row_dims must be
-  /// >= 1; empty row_dims gives a 1-D series of scalars.
+  /// Series of shape (rows, row_dims...), time as first axis, with attribute `units`. Every
+  /// entry of row_dims must be >= 1; empty row_dims gives a 1-D series of scalars. After
+  /// resume(), the series must exist in the file with the same row shape.
   SeriesId create_series(const std::string& path, const std::vector<hsize_t>& row_dims,
                          const std::string& units);
-  /// Append `nrows` rows (each prod(row_dims) doubles, row-major) to the series. The rows are
-  /// held in memory and reach the file at the next flush().
+  /// Append `nrows` rows (each prod(row_dims) doubles, row-major). They are held in memory
+  /// and reach the file at the next flush().
   void append(SeriesId series, const double* rows, std::size_t nrows);
-  /// Rows appended so far, flushed or not. Keeping all series equally long is the caller's job.
+  /// Rows appended so far (resumed, flushed or not).
   std::size_t length(SeriesId series) const;
+  /// Bytes of rows held in memory, waiting for the next flush.
+  std::size_t pending_bytes() const;
 
-  /// Write everything appended so far and commit it (see the header comment): on return it is
-  /// durable and readable by other processes.
+  /// Write the rows appended so far to a new segment and publish the index: on return they
+  /// are in the file at `path` for any reader. Every series must be equally long.
   void flush();
-  /// flush(), then close the file; throws LibraryError on failure. Idempotent.
+  /// Write the final, self-contained file and remove the segments; throws LibraryError on
+  /// failure (the last published index stays readable). Idempotent.
   void close();
 
  private:
-  struct Series;
-  H5Writer();
-  static void write_rows(Series& s);
-  void set_integer_attribute(const std::string& object_path, const std::string& name,
-                             long long value);
-  void write_fixed(const std::string& path, const std::vector<hsize_t>& dims, const void* data,
-                   hid_t mem_type, hid_t file_type, const std::string& units);
+  struct Series {
+    std::string path;
+    std::vector<hsize_t> row_dims;
+    std::size_t row_size = 1;      // doubles per row
+    std::vector<double> pending;   // rows appended since the last flush, row-major
+  };
+  struct Segment {
+    std::string name;   // file name inside the parts folder
+    hsize_t rows = 0;   // rows of every series it holds
+    int level = 0;      // 0: written by a flush; k + 1: merged from kMergeFanIn of level k
+  };
+  struct Retired {
+    std::string name;
+    double since_s;     // steady-clock time it left the index [s]
+  };
+  H5Writer() = default;
   void require_open(const char* what) const;
+  hsize_t published_rows() const;
+  std::string part(const std::string& name) const;
+  void write_segment();
+  void merge_tail();
+  void delete_retired(bool all);
+  std::string next_segment_name();
+  void publish_index();
+  void write_final();
 
-  H5FileId file_;                 // declared first: closed after every dataset below
+  std::string path_;
+  std::string parts_dir_;     // "<path>.parts"
+  std::string parts_name_;    // its name relative to the folder of `path`
+  Options options_;
+  bool open_ = false;
+  H5Tree tree_;
   std::vector<Series> series_;
+  std::vector<Segment> segments_;
+  std::vector<Retired> retired_;  // merged away, deleted once no reader can still need them
+  unsigned next_segment_ = 1;
+  std::string resumed_from_;  // after resume(): the index create_series checks against
 };
 
 }  // namespace hawser

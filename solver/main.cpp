@@ -31,6 +31,10 @@ int main(int argc, char** argv) {
   add_common(run);
   std::string output;
   run->add_option("-o,--output", output, "result file (default: <scenario name>.h5 in the current directory)");
+  std::string resume;
+  run->add_option("--resume", resume,
+                  "continue the run a killed `hawser run` left in this result file (same scenario and --set values)")
+      ->type_name("RESULT.h5");
   CLI::App* modes = app.add_subcommand("modes", "periods, damping, kinds and shapes of the lowest modes about the equilibrium");
   add_common(modes);
   int modes_k = 10;
@@ -48,7 +52,7 @@ int main(int argc, char** argv) {
     if (check->parsed()) return cmd_check(opt);
     if (design->parsed()) return cmd_design(opt, json);
     if (keys->parsed()) return cmd_keys();
-    if (run->parsed()) return cmd_run(opt, output);
+    if (run->parsed()) return cmd_run(opt, output, resume);
     if (modes->parsed()) return cmd_modes(opt, modes_k, output, json);
   } catch (const InputError& e) {
     std::cerr << e.what();

@@ -71,7 +71,9 @@ struct InitialSpec {
 struct OutputSpec {
   int node_stride = 1;
   std::vector<int> nodes;       // explicit choice; empty: use the stride
-  int flush_every = 10;         // outputs between flushes
+  double flush_interval_s = 10.0;  // wall-clock time between publications of the result file
+  int flush_every = 0;             // also every this many outputs (0: off)
+  int deflate_level = 0;           // 0: no compression; else shuffle + deflate at this level
 };
 
 struct Scenario {

@@ -89,6 +89,8 @@ void build_initial_and_output(const ScenarioValues& v, double length_m, int elem
   }
   s.output.node_stride = static_cast<int>(v.integer("output.node_stride"));
   s.output.flush_every = static_cast<int>(v.integer("output.flush_every"));
+  s.output.flush_interval_s = v.quantity("output.flush_interval");
+  s.output.deflate_level = v.text("output.compression") == "deflate" ? 4 : 0;
   if (v.has("output.nodes")) {
     for (double x : v.at("output.nodes").vector) {
       const int node = static_cast<int>(x);

@@ -84,7 +84,7 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
   RunSummary summary;
   SummaryKeeper keeper(sys.model(), summary);
   Progress progress(opt.duration_s, opt.progress);
-  std::vector<double> y = y0;
+  std::vector<double> y = opt.resume ? opt.resume->state : y0;
   Matrix3X x, v;
   std::vector<double> ydot(y.size());
   auto emit = [&](double t) {
@@ -109,11 +109,17 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
   for (const VelocityJump& j : sys.model().jumps) events.push_back(j.time_s);
   std::sort(events.begin(), events.end());
   events.erase(std::unique(events.begin(), events.end()), events.end());
-  // Strikes at t = 0 act on the initial state.
-  for (const VelocityJump& j : sys.model().jumps)
-    if (j.time_s <= 0.0 && sys.layout().is_free(j.node))
-      for (int a = 0; a < 3; ++a) y[sys.layout().v(j.node, a)] += j.delta_v_m_s[a];
-  {
+  const double t_start = opt.resume ? opt.resume->time_s : 0.0;
+  long output_index = 1;
+  if (opt.resume) {
+    // Continue a run: its state already holds every strike up to t_start.
+    summary = opt.resume->summary;
+    output_index = opt.resume->next_output;
+  } else {
+    // Strikes at t = 0 act on the initial state.
+    for (const VelocityJump& j : sys.model().jumps)
+      if (j.time_s <= 0.0 && sys.layout().is_free(j.node))
+        for (int a = 0; a < 3; ++a) y[sys.layout().v(j.node, a)] += j.delta_v_m_s[a];
     // A start already past the ultimate strength has no crossing for the root function to
     // find: it is a rupture at t = 0.
     const TetherDiagnostics d0 = emit(0.0);
@@ -131,14 +137,26 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
     }
   }
   std::size_t next_event = 0;
-  while (next_event < events.size() && events[next_event] <= 0.0) ++next_event;
-
-  TimeIntegrator integ(sys, 0.0, y.data(), opt.integrator);
-  const double inf = std::numeric_limits<double>::infinity();
-  long output_index = 1;
+  while (next_event < events.size() && events[next_event] <= t_start) ++next_event;
   auto last_flush = std::chrono::steady_clock::now();
   int since_flush = 0;
-  double t = 0.0;
+  // Publish what was recorded, with the state to continue from (an output time's).
+  auto flush_at = [&](double t_out) {
+    RunCheckpoint c;
+    c.time_s = t_out;
+    c.state = y;
+    c.next_output = output_index;
+    c.summary = summary;
+    sink.checkpoint(c);
+    sink.flush();
+    since_flush = 0;
+    last_flush = std::chrono::steady_clock::now();
+  };
+  if (!opt.resume) flush_at(0.0);
+
+  TimeIntegrator integ(sys, t_start, y.data(), opt.integrator);
+  const double inf = std::numeric_limits<double>::infinity();
+  double t = t_start;
   summary.status = "complete";
   try {
     while (t < opt.duration_s) {
@@ -163,13 +181,12 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
       if (reached >= t_out) {
         emit(t_out);
         ++output_index;
-        const auto now = std::chrono::steady_clock::now();
-        if (++since_flush >= opt.flush_every ||
-            std::chrono::duration<double>(now - last_flush).count() >= opt.flush_wall_s) {
-          sink.flush();
-          since_flush = 0;
-          last_flush = now;
-        }
+        const double since_s =
+            std::chrono::duration<double>(std::chrono::steady_clock::now() - last_flush).count();
+        ++since_flush;
+        if (since_s >= opt.flush.wall_interval_s ||
+            (opt.flush.every_outputs > 0 && since_flush >= opt.flush.every_outputs))
+          flush_at(t_out);
       } else if (next_event < events.size() && reached >= events[next_event]) {
         // A discontinuity of the forcing: apply any strike, restart from low order.
         for (const VelocityJump& j : sys.model().jumps)
@@ -198,7 +215,8 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
   summary.end_time_s = t;
   summary.stats = integ.stats();
   summary.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - wall0).count();
-  sink.flush();
+  // No flush here: the caller closes the sink with the summary (the recorder then writes its
+  // final file straight from memory, without a last segment).
   return summary;
 }
 

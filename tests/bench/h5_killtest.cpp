@@ -2,15 +2,14 @@
 //
 // Helper for tests/cli/test_h5_live_read.py: writes a result-like file with H5Writer, appending
 // rows whose every value is the row index, and flushes after blocks of 1, 2, 3, 4, 5, 1, 2, ...
-// rows (uneven, so chunks are often left incomplete and rewritten). After each flush it prints
+// rows (uneven). After each flush it prints
 // "flushed K" (K = rows now durable in every series); the test may SIGKILL it at any moment and
 // then expects all K rows. Ends with status "complete" and "closed K" after NROWS rows.
 //
-// Series (chunk shapes by series_chunk in h5_writer.cpp):
-//   /time and /energy/kinetic (scalars, s and J: 512 rows a chunk, incomplete most of the time),
-//   /elements/tension (200, N: 2 rows a chunk, completed every other row),
-//   /nodes/position (201 x 3, m) and /nodes/velocity (341 x 3, m/s): one chunk per row, so
-//   their chunk B-trees split (64 entries a node) within the first hundred rows.
+// Series: /time and /energy/kinetic (scalars, s and J), /elements/tension (200, N),
+// /nodes/position (201 x 3, m) and /nodes/velocity (341 x 3, m/s). Each flush makes a segment
+// file; every 8 of one level are merged (h5_writer.hpp), so a run of a few hundred flushes
+// exercises merges of two levels.
 #include <unistd.h>
 
 #include <cstdio>
@@ -52,7 +51,7 @@ int main(int argc, char** argv) {
     }
   }
   try {
-    auto writer = hawser::H5Writer::create(path, durability);
+    auto writer = hawser::H5Writer::create(path, hawser::H5Writer::Options{durability, 0});
     writer.set_attribute("/", "status", "running");
     struct Spec {
       const char* path;

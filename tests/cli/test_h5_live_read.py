@@ -3,19 +3,21 @@
 
 Drives tests/bench/h5_killtest (built beside the hawser program, in <build>/tests/), which
 writes with H5Writer (solver/h5_writer.hpp) and prints "flushed K" each time K rows are durable.
-Every check opens the file with plain h5py.File(path, "r") (default driver, no SWMR, no h5clear):
+Every check opens the file with plain h5py.File(path, "r") (default driver, no SWMR, no h5clear).
+The writer's promise (h5_writer.hpp, "The guarantee"): at every instant the file is a complete
+HDF5 file holding every row up to the last flush.
   1. live: while the writer runs, every series holds at least the K rows last reported, each row
      equal to its index, with the right units attribute -- also for a reader that keeps the file
-     open while the writer commits many more flushes before it reads; then a few seconds of
-     back-to-back reads of the newest rows, which is where a commit and a read can collide
-     (B-tree nodes split there: a reader must never lose committed rows to a split);
+     open while the writer publishes many more flushes (and merges segments) before it reads;
+     then a few seconds of back-to-back reads of the newest rows;
   2. kill: SIGKILL at random moments, then the file opens and holds every reported row intact,
-     and /time (created first, so committed last) is never longer than another series;
+     and every series is as long as /time;
   3. a run left to finish holds exactly NROWS rows and status "complete";
-  4. crash replay: random kills rarely land in the few microseconds where a flush is fragile,
-     so every write(2)/pwrite(2)/ftruncate(2) of a run is recorded (an LD_PRELOAD recorder,
-     compiled here with the system C compiler) and the file is rebuilt as it stood between each
-     two of them -- every moment a kill could leave -- and checked like (2).
+  4. crash replay: random kills rarely land in the few microseconds of a rename, so every change
+     the writer makes to its folder (open with truncation, pwrite(2), ftruncate(2), rename(2),
+     unlink(2)) is recorded by an LD_PRELOAD recorder compiled here with the system C compiler,
+     and the folder is rebuilt as it stood before each rename and unlink and before every 7th
+     write -- moments a kill could leave -- and checked like (2).
 Expected shapes, units and values come from tests/bench/h5_killtest.cpp (the writer's input).
 """
 import argparse
@@ -44,10 +46,10 @@ SERIES = {
     "/nodes/velocity": ((341, 3), "m/s"),
 }
 FIRST_SERIES = "/time"
-# /nodes/position and /nodes/velocity hold one row per chunk, so their chunk B-trees (64
-# entries a node: HDF5's default chunk B-tree K = 32) split at the root near row 64 and below it
-# from about row 96 on (h5_writer.cpp series_chunk): replay past both.
+# 140 rows in flushes of 1..5 rows make 47 flushes: segments merge at two levels (every 8 of a
+# level, h5_writer.hpp), so the replay passes through merges, publications and deletions.
 REPLAY_ROWS = 140
+REPLAY_STRIDE = 7
 
 
 class Writer:
@@ -167,34 +169,54 @@ def check_file(path, rows, exact=False, status=(b"running",), hold_open=0.0, who
 
 # ---- crash replay ------------------------------------------------------------------------------
 
-# LD_PRELOAD recorder: logs every write to the file named by $REC_TARGET (kind 'W' offset length
-# bytes, 'T' length for ftruncate) and a marker 'M' rows when the program writes "flushed rows"
-# to stdout. Records: 1 byte kind, int64 offset or rows, int64 length, then the bytes for 'W'.
+# LD_PRELOAD recorder: logs every change the writer makes to the files in the folder $REC_DIR
+# (the result file and its .parts folder): 'O' open with O_TRUNC or O_CREAT (length 0 for a
+# truncation), 'W' pwrite (offset, bytes), 'T' ftruncate (length), 'R' rename (to a second
+# path), 'U' unlink, and a marker 'M' rows when the program writes "flushed rows" to stdout.
+# Record: 1 byte kind, int64 offset/rows/length, int64 data length, uint16 path length, path,
+# then the data (the bytes of 'W', the target path of 'R').
 RECORDER_C = r"""
 #define _GNU_SOURCE
 #include <dlfcn.h>
 #include <fcntl.h>
 #include <stdarg.h>
 #include <stdint.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/types.h>
 #include <unistd.h>
-static int target = -1, log_fd = -1;
+#define MAXFD 4096
+static char *names[MAXFD];
+static int log_fd = -1;
 static ssize_t (*real_write)(int, const void *, size_t);
 static void put(const void *p, size_t n) {
   const char *c = p;
   while (n > 0) { ssize_t k = real_write(log_fd, c, n); if (k <= 0) abort(); c += k; n -= k; }
 }
-static void rec(char kind, int64_t off, int64_t len, const void *data) {
+static void rec(char kind, int64_t off, const char *path, const void *data, int64_t len) {
   if (!real_write) real_write = dlsym(RTLD_NEXT, "write");
-  if (log_fd < 0) log_fd = open(getenv("REC_LOG"), O_WRONLY | O_CREAT | O_TRUNC, 0644);
-  put(&kind, 1); put(&off, 8); put(&len, 8);
-  if (kind == 'W') put(data, len);
+  if (log_fd < 0) log_fd = open(getenv("REC_LOG"), O_WRONLY | O_CREAT | O_TRUNC | O_APPEND, 0644);
+  uint16_t pl = path ? (uint16_t)strlen(path) : 0;
+  put(&kind, 1); put(&off, 8); put(&len, 8); put(&pl, 2);
+  if (pl) put(path, pl);
+  if (len) put(data, len);
 }
-static int opened(const char *path, int fd) {
-  const char *t = getenv("REC_TARGET");
-  if (fd >= 0 && t && strcmp(path, t) == 0) target = fd;
+/* The name inside $REC_DIR, or NULL for files elsewhere. */
+static const char *inside(const char *path) {
+  const char *d = getenv("REC_DIR");
+  size_t n = d ? strlen(d) : 0;
+  if (!d || strncmp(path, d, n) != 0 || path[n] != '/') return NULL;
+  return path + n + 1;
+}
+static int opened(const char *path, int flags, int fd) {
+  const char *rel = inside(path);
+  if (fd < 0 || fd >= MAXFD) return fd;
+  free(names[fd]); names[fd] = NULL;
+  if (rel && (flags & (O_WRONLY | O_RDWR))) {
+    names[fd] = strdup(rel);
+    if (flags & (O_TRUNC | O_CREAT)) rec('O', (flags & O_TRUNC) ? 0 : -1, rel, 0, 0);
+  }
   return fd;
 }
 #define OPEN(name)                                                          \
@@ -203,16 +225,22 @@ static int opened(const char *path, int fd) {
     if (!real) real = dlsym(RTLD_NEXT, #name);                              \
     mode_t mode = 0;                                                        \
     if (flags & O_CREAT) { va_list a; va_start(a, flags); mode = va_arg(a, int); va_end(a); } \
-    return opened(path, real(path, flags, mode));                          \
+    return opened(path, flags, real(path, flags, mode));                    \
   }
 OPEN(open)
 OPEN(open64)
+int close(int fd) {
+  static int (*real)(int);
+  if (!real) real = dlsym(RTLD_NEXT, "close");
+  if (fd >= 0 && fd < MAXFD) { free(names[fd]); names[fd] = NULL; }
+  return real(fd);
+}
 #define PWRITE(name)                                                        \
   ssize_t name(int fd, const void *b, size_t n, off_t off) {                \
     static ssize_t (*real)(int, const void *, size_t, off_t);              \
     if (!real) real = dlsym(RTLD_NEXT, #name);                              \
     ssize_t k = real(fd, b, n, off);                                        \
-    if (fd == target && k > 0) rec('W', off, k, b);                         \
+    if (fd >= 0 && fd < MAXFD && names[fd] && k > 0) rec('W', off, names[fd], b, k); \
     return k;                                                               \
   }
 PWRITE(pwrite)
@@ -222,58 +250,95 @@ PWRITE(pwrite64)
     static int (*real)(int, off_t);                                         \
     if (!real) real = dlsym(RTLD_NEXT, #name);                              \
     int r = real(fd, len);                                                  \
-    if (fd == target && r == 0) rec('T', len, 0, 0);                        \
+    if (fd >= 0 && fd < MAXFD && names[fd] && r == 0) rec('T', len, names[fd], 0, 0); \
     return r;                                                               \
   }
 FTRUNCATE(ftruncate)
 FTRUNCATE(ftruncate64)
+int rename(const char *from, const char *to) {
+  static int (*real)(const char *, const char *);
+  if (!real) real = dlsym(RTLD_NEXT, "rename");
+  int r = real(from, to);
+  const char *a = inside(from), *b = inside(to);
+  if (r == 0 && a && b) rec('R', 0, a, b, (int64_t)strlen(b));
+  else if (r == 0 && (a || b)) abort();  /* a move across the folder's edge: not modelled */
+  return r;
+}
+int unlink(const char *path) {
+  static int (*real)(const char *);
+  if (!real) real = dlsym(RTLD_NEXT, "unlink");
+  int r = real(path);
+  const char *rel = inside(path);
+  if (r == 0 && rel) rec('U', 0, rel, 0, 0);
+  return r;
+}
 ssize_t write(int fd, const void *b, size_t n) {
   if (!real_write) real_write = dlsym(RTLD_NEXT, "write");
-  if (fd == target) abort();  /* the driver writes with pwrite only; anything else is unrecorded */
-  if (fd == 1 && n > 8 && memcmp(b, "flushed ", 8) == 0) rec('M', atoll((const char *)b + 8), 0, 0);
+  if (fd >= 0 && fd < MAXFD && names[fd]) abort();  /* HDF5 writes with pwrite; anything else is unrecorded */
+  if (fd == 1 && n > 8 && memcmp(b, "flushed ", 8) == 0) rec('M', atoll((const char *)b + 8), 0, 0, 0);
   return real_write(fd, b, n);
 }
 """
 
 
 def read_log(path):
-    """[(kind, offset_or_rows, length, bytes)] from the recorder's log."""
+    """[(kind, number, path, data)] from the recorder's log."""
     log, ops, p = Path(path).read_bytes(), [], 0
     while p < len(log):
         kind = log[p:p + 1]
-        off, n = struct.unpack("<qq", log[p + 1:p + 17])
-        p += 17
-        data = log[p:p + n] if kind == b"W" else b""
-        p += len(data)
-        ops.append((kind, off, data))
+        num, n, pl = struct.unpack("<qqH", log[p + 1:p + 19])
+        p += 19
+        name = log[p:p + pl].decode()
+        p += pl
+        data = log[p:p + n]
+        p += n
+        ops.append((kind, num, name, data))
     return ops
 
 
+def apply_op(files, op):
+    """Apply one recorded change to `files` (name -> bytearray)."""
+    kind, num, name, data = op
+    if kind == b"O":
+        if num == 0 or name not in files:
+            files[name] = bytearray()
+    elif kind == b"W":
+        image = files.setdefault(name, bytearray())
+        if num + len(data) > len(image):
+            image.extend(bytes(num + len(data) - len(image)))
+        image[num:num + len(data)] = data
+    elif kind == b"T":
+        image = files.setdefault(name, bytearray())
+        del image[num:]
+        image.extend(bytes(max(0, num - len(image))))
+    elif kind == b"R":
+        files[data.decode()] = files.pop(name)
+    elif kind == b"U":
+        files.pop(name, None)
+
+
 def replay_worker(args):
-    """Rebuild the file before every recorded write; check the states with index % step == part."""
-    ops, part, step, scratch = args
-    image, size, rows, checked, failures = bytearray(), 0, None, 0, []
-    path = Path(scratch) / f"crash{part}.h5"
-    for i, (kind, off, data) in enumerate(ops):
-        if kind == b"M":
-            rows = off
+    """Rebuild the folder as it stood before every chosen change; check the result file."""
+    ops, points, part, scratch, target = args
+    files, rows, checked, failures = {}, None, 0, []
+    folder = Path(scratch) / f"crash{part}"
+    wanted = set(points)
+    for i, op in enumerate(ops):
+        if op[0] == b"M":
+            rows = op[1]
             continue
-        if rows is not None and i % step == part:
-            with open(path, "wb") as fh:        # sparse, like the writer's reserve
-                fh.write(image[:size])
-                fh.truncate(size)
+        if rows is not None and i in wanted:
+            shutil.rmtree(folder, ignore_errors=True)
+            for name, image in files.items():
+                dest = folder / name
+                dest.parent.mkdir(parents=True, exist_ok=True)
+                dest.write_bytes(bytes(image))
             checked += 1
-            problems = check_file(path, rows, status=(b"running", b"complete"), whole=False)
+            problems = check_file(folder / target, rows, status=(b"running", b"complete"),
+                                  whole=False)
             if problems:
                 failures.append((i, rows, problems))
-        if kind == b"W":
-            if off + len(data) > len(image):
-                image.extend(bytes(off + len(data) - len(image)))
-            image[off:off + len(data)] = data
-            size = max(size, off + len(data))
-        elif kind == b"T":
-            size = off
-            del image[off:]
+        apply_op(files, op)
     return checked, failures
 
 
@@ -289,29 +354,38 @@ def crash_replay(exe, scratch, record):
     if built.returncode != 0:
         record("crash replay: build recorder", [built.stderr.strip()])
         return
-    path, log = Path(scratch) / "replay.h5", Path(scratch) / "replay.log"
-    env = dict(os.environ, LD_PRELOAD=str(lib), REC_TARGET=str(path), REC_LOG=str(log))
+    folder = Path(scratch) / "replay"
+    folder.mkdir()
+    path, log = folder / "replay.h5", Path(scratch) / "replay.log"
+    env = dict(os.environ, LD_PRELOAD=str(lib), REC_DIR=str(folder), REC_LOG=str(log))
     w = Writer(exe, path, REPLAY_ROWS, "process_kill", env=env)
     code, err = w.finish(timeout=120)
     if code != 0 or w.closed != REPLAY_ROWS:
         record("crash replay: recorded run", [f"exit {code}, closed {w.closed}: {err.strip()}"])
         return
     ops = read_log(log)
-    writes = sum(1 for op in ops if op[0] != b"M")
+    changes = [i for i, op in enumerate(ops) if op[0] != b"M"]
+    renames = [i for i, op in enumerate(ops) if op[0] in (b"R", b"U")]
     markers = sum(1 for op in ops if op[0] == b"M")
     problems = []
-    if markers < REPLAY_ROWS // 5 or writes < 10 * markers:
-        problems.append(f"recorder saw {writes} writes and {markers} flush reports: too few")
+    if markers < REPLAY_ROWS // 5 or len(renames) < markers:
+        problems.append(f"recorder saw {len(changes)} changes, {len(renames)} renames and "
+                        f"unlinks, {markers} flush reports: too few")
+    # Every moment around a rename or an unlink (where the published file changes), and every
+    # REPLAY_STRIDE-th write besides (the published file must never change between renames).
+    points = sorted(set(renames) | {i + 1 for i in renames if i + 1 < len(ops)} |
+                    set(changes[::REPLAY_STRIDE]))
     workers = max(1, min(4, os.cpu_count() or 1))
     with multiprocessing.Pool(workers) as pool:
-        results = pool.map(replay_worker, [(ops, k, workers, scratch) for k in range(workers)])
+        results = pool.map(replay_worker, [(ops, points[k::workers], k, scratch, path.name)
+                                           for k in range(workers)])
     checked = sum(r[0] for r in results)
     failures = sorted(f for r in results for f in r[1])
     for i, rows, found in failures[:5]:
-        problems.append(f"crash before write {i} ({rows} rows reported): {'; '.join(found)}")
+        problems.append(f"crash before change {i} ({rows} rows reported): {'; '.join(found)}")
     if failures:
         problems.append(f"{len(failures)} of {checked} crash points unreadable or short")
-    record(f"crash replay: {checked} crash points between {writes} writes of "
+    record(f"crash replay: {checked} crash points among {len(changes)} file changes of "
            f"{markers} flushes", problems)
 
 

@@ -1,6 +1,6 @@
 // H5Writer: what is written is what an independent reader (the HDF5 C API with its default
-// driver) reads back, with units, chunking and compression as documented in h5_writer.hpp.
-// Crash and live-reader behaviour is checked in tests/cli/test_h5_live_read.py.
+// driver) reads back, with units, chunking, compression, segments and resumption as documented
+// in h5_writer.hpp. Crash and live-reader behaviour is checked in tests/cli/test_h5_live_read.py.
 #include <catch2/catch.hpp>
 
 #include <unistd.h>
@@ -234,10 +234,8 @@ TEST_CASE("H5Writer series grow along time and are readable by another open afte
 
   {  // A second, independent open with the default driver while the writer is still open.
     const auto file = open_read(path);
-    std::vector<hsize_t> max_dims;
-    CHECK(shape(open_dataset(file.get(), "/nodes/position").get(), &max_dims) ==
+    CHECK(shape(open_dataset(file.get(), "/nodes/position").get()) ==
           std::vector<hsize_t>{11, 5, 3});
-    CHECK(max_dims == std::vector<hsize_t>{H5S_UNLIMITED, 5, 3});
     const auto t = read_doubles(file.get(), "/time");
     REQUIRE(t.size() == 11);
     for (std::size_t r = 0; r < t.size(); ++r) CHECK(t[r] == static_cast<double>(r));
@@ -256,147 +254,162 @@ TEST_CASE("H5Writer series grow along time and are readable by another open afte
   }
 }
 
-TEST_CASE("H5Writer series are chunked along time, shuffled and deflated", "[h5]") {
-  ScratchDir scratch;
-  const std::string path = scratch.file("chunks.h5");
-  {
-    auto writer = H5Writer::create(path);
-    writer.create_series("/time", {}, "s");
-    writer.create_series("/elements/tension", {100}, "N");
-    const auto position = writer.create_series("/nodes/position", {201, 3}, "m");
-    writer.create_series("/nodes/huge", {50000, 3}, "m");
-    // 40 identical rows compress well; storage far below the raw size proves deflate ran.
-    const std::vector<double> rows(40 * 201 * 3, 1.25);
-    writer.append(position, rows.data(), 40);
-    writer.close();
-  }
-  const auto file = open_read(path);
-  // Expected chunk shapes: the rule of series_chunk in h5_writer.cpp (this project's design):
-  // rows under 4 KiB grouped up to 4096 bytes (8 B -> 512 rows, 800 B -> 5 rows), wider rows
-  // one per chunk (4824 B), rows over 1 MiB halved along their widest axis (50000 -> 25000).
-  struct Expect {
-    const char* path;
-    std::vector<hsize_t> chunk;
-  };
-  for (const Expect& e : {Expect{"/time", {512}}, Expect{"/elements/tension", {5, 100}},
-                          Expect{"/nodes/position", {1, 201, 3}},
-                          Expect{"/nodes/huge", {1, 25000, 3}}}) {
-    INFO(e.path);
-    const auto dataset = open_dataset(file.get(), e.path);
-    const hawser::H5PropListId dcpl{
-        h5check(H5Dget_create_plist(dataset.get()), "H5Dget_create_plist")};
-    CHECK(H5Pget_layout(dcpl.get()) == H5D_CHUNKED);
-    std::vector<hsize_t> chunk(e.chunk.size());
-    CHECK(H5Pget_chunk(dcpl.get(), static_cast<int>(chunk.size()), chunk.data()) ==
-          static_cast<int>(chunk.size()));
-    CHECK(chunk == e.chunk);
+namespace {
+// Chunk shape and filters of a dataset's creation property list.
+struct Layout {
+  std::vector<hsize_t> chunk;
+  std::vector<H5Z_filter_t> filters;
+  H5D_layout_t kind;
+};
 
-    // Shuffle first, then deflate at level 4 (h5py's default gzip level: common practice).
-    REQUIRE(H5Pget_nfilters(dcpl.get()) == 2);
-    unsigned flags = 0, level = 0;
-    std::size_t n_values = 1;
-    char name[64];
-    CHECK(H5Pget_filter2(dcpl.get(), 0, &flags, &n_values, &level, sizeof name, name, nullptr) ==
-          H5Z_FILTER_SHUFFLE);
-    n_values = 1;
-    CHECK(H5Pget_filter2(dcpl.get(), 1, &flags, &n_values, &level, sizeof name, name, nullptr) ==
-          H5Z_FILTER_DEFLATE);
-    CHECK(level == 4);
+Layout layout_of(hid_t dataset) {
+  const hawser::H5PropListId dcpl{h5check(H5Dget_create_plist(dataset), "H5Dget_create_plist")};
+  Layout l;
+  l.kind = H5Pget_layout(dcpl.get());
+  if (l.kind == H5D_CHUNKED) {
+    l.chunk.resize(H5S_MAX_RANK);
+    const int rank = h5check(H5Pget_chunk(dcpl.get(), H5S_MAX_RANK, l.chunk.data()), "H5Pget_chunk");
+    l.chunk.resize(static_cast<std::size_t>(rank));
   }
-  const auto position = open_dataset(file.get(), "/nodes/position");
-  const hsize_t raw_bytes = 40 * 201 * 3 * sizeof(double);
-  CHECK(H5Dget_storage_size(position.get()) < raw_bytes / 10);
-  CHECK(read_doubles(file.get(), "/nodes/position") == std::vector<double>(40 * 201 * 3, 1.25));
+  const int n = h5check(H5Pget_nfilters(dcpl.get()), "H5Pget_nfilters");
+  for (int i = 0; i < n; ++i) {
+    unsigned flags = 0;
+    std::size_t nelem = 0;
+    l.filters.push_back(H5Pget_filter2(dcpl.get(), static_cast<unsigned>(i), &flags, &nelem,
+                                       nullptr, 0, nullptr, nullptr));
+  }
+  return l;
 }
 
-TEST_CASE("H5Writer keeps the chunk a flush leaves incomplete unfiltered until it is complete",
+std::size_t files_in(const std::string& dir) {
+  std::size_t n = 0;
+  for (const auto& e : std::filesystem::directory_iterator(dir)) n += e.is_regular_file();
+  return n;
+}
+}  // namespace
+
+TEST_CASE("H5Writer's finished file holds ordinary chunked series, compressed on request",
           "[h5]") {
   ScratchDir scratch;
-  const std::string path = scratch.file("tail.h5");
-  auto writer = H5Writer::create(path);
-  const auto tension = writer.create_series("/elements/tension", {100}, "N");  // 5 rows a chunk
-  const std::vector<double> row(100, 7.5);
-  struct Chunk {
-    unsigned mask;
-    haddr_t addr;
-    hsize_t size;
-  };
-  // Read through a second, independent open (default driver) after each flush.
-  const auto chunk_at = [&path](hsize_t first_row) {
-    const auto file = open_read(path);
-    const auto dataset = open_dataset(file.get(), "/elements/tension");
-    const hsize_t offset[2] = {first_row, 0};
-    Chunk c{};
-    h5check(H5Dget_chunk_info_by_coord(dataset.get(), offset, &c.mask, &c.addr, &c.size),
-            "H5Dget_chunk_info_by_coord");
-    return c;
-  };
-  // Check values: the filter mask bit i marks filter i as skipped (HDF5 reference manual,
-  // H5Dwrite_chunk); the pipeline is shuffle (bit 0), deflate (bit 1). An unfiltered chunk
-  // holds all 5 rows of 100 doubles: 4000 bytes.
-  const unsigned unfiltered = 0x3;
-  for (int i = 0; i < 3; ++i) writer.append(tension, row.data(), 1);
-  writer.flush();
-  const Chunk first = chunk_at(0);
-  CHECK(first.mask == unfiltered);
-  CHECK(first.size == 5 * 100 * sizeof(double));
-
-  writer.append(tension, row.data(), 1);  // still incomplete: rewritten in place
-  writer.flush();
-  const Chunk second = chunk_at(0);
-  CHECK(second.mask == unfiltered);
-  CHECK(second.addr == first.addr);
-  CHECK(second.size == first.size);
-
-  for (int i = 0; i < 2; ++i) writer.append(tension, row.data(), 1);  // completes chunk 0
-  writer.flush();
-  const Chunk done = chunk_at(0);
-  CHECK(done.mask == 0);                 // shuffled and deflated
-  CHECK(done.size < first.size / 10);    // 500 equal doubles deflate far below 4000 bytes
-  CHECK(chunk_at(5).mask == unfiltered);  // row 5 starts the next incomplete chunk
-  writer.close();
-  const auto file = open_read(path);
-  CHECK(read_doubles(file.get(), "/elements/tension") == std::vector<double>(6 * 100, 7.5));
-}
-
-TEST_CASE("H5Writer file stays near the size of its data when flushed after every row", "[h5]") {
-  ScratchDir scratch;
-  const std::string path = scratch.file("size.h5");
-  const std::size_t nodes = 101, rows = 600;
-  {
-    auto writer = H5Writer::create(path, H5Writer::Durability::process_kill);
-    const auto time = writer.create_series("/time", {}, "s");
-    const auto position = writer.create_series("/nodes/position", {nodes, 3}, "m");
-    const auto tension = writer.create_series("/elements/tension", {nodes - 1}, "N");
-    std::vector<double> p(nodes * 3), t(nodes - 1);
-    for (std::size_t k = 0; k < rows; ++k) {
-      const double tk = 10.0 * k;
-      for (std::size_t i = 0; i < p.size(); ++i) p[i] = 1e5 * i + std::sin(1e-3 * tk + i);
-      for (std::size_t e = 0; e < t.size(); ++e) t[e] = 1e9 + 1e6 * std::sin(1e-3 * tk + e);
-      writer.append(time, &tk, 1);
-      writer.append(position, p.data(), 1);
-      writer.append(tension, t.data(), 1);
-      writer.flush();
+  for (const int level : {0, 4}) {
+    const std::string path = scratch.file("final" + std::to_string(level) + ".h5");
+    auto writer = H5Writer::create(path, H5Writer::Options{H5Writer::Durability::process_kill, level});
+    const auto wide = writer.create_series("/nodes/position", {201, 3}, "m");  // 4824 B a row
+    const auto narrow = writer.create_series("/time", {}, "s");
+    std::vector<double> row(603);
+    for (int r = 0; r < 300; ++r) {
+      for (std::size_t j = 0; j < row.size(); ++j) row[j] = 6.4e6 + r + 1e-3 * static_cast<double>(j);
+      const double t = r;
+      writer.append(wide, row.data(), 1);
+      writer.append(narrow, &t, 1);
+      if (r % 50 == 49) writer.flush();
     }
     writer.close();
+    // The parts folder is gone: the file stands alone.
+    CHECK_FALSE(std::filesystem::exists(path + ".parts"));
+    const auto file = open_read(path);
+    const auto ds = open_dataset(file.get(), "/nodes/position");
+    const Layout l = layout_of(ds.get());
+    CHECK(l.kind == H5D_CHUNKED);
+    // Design (h5_writer.cpp chunk_shape): rows grouped up to 1 MiB: 1 MiB / 4824 B = 217 rows.
+    CHECK(l.chunk == std::vector<hsize_t>{217, 201, 3});
+    if (level == 0) {
+      CHECK(l.filters.empty());
+    } else {
+      CHECK(l.filters == std::vector<H5Z_filter_t>{H5Z_FILTER_SHUFFLE, H5Z_FILTER_DEFLATE});
+    }
+    const auto p = read_doubles(file.get(), "/nodes/position");
+    REQUIRE(p.size() == 300 * 603);
+    CHECK(p[299 * 603 + 602] == 6.4e6 + 299 + 1e-3 * 602);
+    CHECK(layout_of(open_dataset(file.get(), "/time").get()).chunk == std::vector<hsize_t>{300});
   }
-  hsize_t stored = 0;
+}
+
+TEST_CASE("H5Writer publishes each flush as an index over segment files, merged eight at a time",
+          "[h5]") {
+  ScratchDir scratch;
+  const std::string path = scratch.file("segments.h5");
+  auto writer = H5Writer::create(path);
+  const auto time = writer.create_series("/time", {}, "s");
+  for (int r = 0; r < 100; ++r) {
+    const double t = r;
+    writer.append(time, &t, 1);
+    writer.flush();
+    // Tiered merging (h5_writer.hpp): with k flushes of one row, the segments are the digits
+    // of k in base 8, so at most 7 per level: here at most 7 + 7 + 1.
+    std::size_t live = 0;
+    {
+      const auto file = open_read(path);
+      const auto ds = open_dataset(file.get(), "/time");
+      const hawser::H5PropListId dcpl{h5check(H5Dget_create_plist(ds.get()), "H5Dget_create_plist")};
+      REQUIRE(H5Pget_layout(dcpl.get()) == H5D_VIRTUAL);
+      h5check(H5Pget_virtual_count(dcpl.get(), &live), "H5Pget_virtual_count");
+      const auto t = read_doubles(file.get(), "/time");
+      REQUIRE(t.size() == static_cast<std::size_t>(r + 1));
+      CHECK(t.back() == r);
+      CHECK(t.front() == 0.0);
+    }
+    std::size_t digits = 0;
+    for (int k = r + 1; k > 0; k /= 8) digits += static_cast<std::size_t>(k % 8);
+    CHECK(live == digits);
+  }
+  // Merged segments stay on disk for readers of older indexes (60 s), so more files than live
+  // segments remain; close() removes them all.
+  CHECK(files_in(path + ".parts") > 3);
+  writer.close();
+  CHECK_FALSE(std::filesystem::exists(path + ".parts"));
+}
+
+TEST_CASE("H5Writer resumes a file its writer left without closing", "[h5]") {
+  ScratchDir scratch;
+  const std::string path = scratch.file("resume.h5");
+  const auto fill = [](H5Writer& w, H5Writer::SeriesId t, H5Writer::SeriesId x, int from, int to) {
+    for (int r = from; r < to; ++r) {
+      const double tr = r;
+      const double xr[2] = {10.0 * r, 10.0 * r + 1};
+      w.append(t, &tr, 1);
+      w.append(x, xr, 1);
+    }
+  };
+  {
+    auto first = H5Writer::create(path);
+    first.set_attribute("/", "status", "running");
+    const auto t = first.create_series("/time", {}, "s");
+    const auto x = first.create_series("/x", {2}, "m");
+    fill(first, t, x, 0, 12);
+    first.flush();
+    fill(first, t, x, 12, 15);  // never flushed: the writer "dies" unclosed, as if killed
+  }
   {
     const auto file = open_read(path);
-    for (const char* name : {"/time", "/nodes/position", "/elements/tension"}) {
-      stored += H5Dget_storage_size(open_dataset(file.get(), name).get());
-    }
+    CHECK(read_string_attribute(file.get(), "/", "status") == "running");
+    CHECK(read_doubles(file.get(), "/time").size() == 12);
   }
-  // Design bound (h5_writer.hpp): besides the chunks, the file keeps at most one unfiltered
-  // copy of each chunk that a flush left incomplete -- here every chunk of the series with
-  // several rows per chunk, /time and /elements/tension, i.e. their raw size -- plus metadata,
-  // allowed 128 KiB (one to two 4 KiB pages per chunk B-tree node of up to 64 entries: the 600
-  // chunks of /nodes/position and 120 of /elements/tension take about 14 nodes). Rewriting the
-  // incomplete chunk compressed at every flush instead gives 2.38 MB here against 2.13 MB.
-  const std::uintmax_t narrow_raw = rows * (1 + (nodes - 1)) * sizeof(double);
-  const std::uintmax_t size = std::filesystem::file_size(path);
-  INFO("file " << size << " B, chunks " << stored << " B, narrow raw " << narrow_raw << " B");
-  CHECK(size <= stored + narrow_raw + 128 * 1024);
+  // A series of another shape is refused with the file named.
+  {
+    auto wrong = H5Writer::resume(path, {}, "/time");
+    wrong.create_series("/time", {}, "s");
+    CHECK_THROWS_AS(wrong.create_series("/x", {3}, "m"), hawser::InputError);
+  }
+  auto again = H5Writer::resume(path, {}, "/time");
+  const auto t = again.create_series("/time", {}, "s");
+  const auto x = again.create_series("/x", {2}, "m");
+  CHECK(again.length(t) == 12);
+  fill(again, t, x, 12, 40);
+  again.set_attribute("/", "status", "complete");
+  again.close();
+  const auto file = open_read(path);
+  CHECK(read_string_attribute(file.get(), "/", "status") == "complete");
+  const auto tv = read_doubles(file.get(), "/time");
+  const auto xv = read_doubles(file.get(), "/x");
+  REQUIRE(tv.size() == 40);
+  REQUIRE(xv.size() == 80);
+  for (int r = 0; r < 40; ++r) {
+    CHECK(tv[r] == r);
+    CHECK(xv[2 * r + 1] == 10.0 * r + 1);
+  }
+  // A finished file has no segments to continue.
+  CHECK_THROWS_AS(H5Writer::resume(path, {}, "/time"), hawser::InputError);
 }
 
 TEST_CASE("H5Writer reports failures as LibraryError naming the HDF5 call", "[h5]") {
@@ -408,22 +421,24 @@ TEST_CASE("H5Writer reports failures as LibraryError naming the HDF5 call", "[h5
   } catch (const hawser::LibraryError& e) {
     const std::string what = e.what();
     INFO(what);
-    CHECK(what.find("H5Fcreate") != std::string::npos);
+    CHECK(what.find("mkdir") != std::string::npos);  // the parts folder comes first
     CHECK(what.find("No such file or directory") != std::string::npos);  // strerror(ENOENT)
   }
 
   auto writer = H5Writer::create(scratch.file("twice.h5"));
   const double x = 1.0;
   writer.write_array("/x", {1}, &x, "1");
+  // A dataset and a group of one name cannot both be: the library's refusal names its call.
+  writer.set_attribute("/x/y", "a", 1.0);
   try {
-    writer.write_array("/x", {1}, &x, "1");
-    FAIL("second dataset at the same path did not throw");
+    writer.flush();
+    FAIL("a group below a dataset did not throw");
   } catch (const hawser::LibraryError& e) {
     INFO(e.what());
-    CHECK(std::string(e.what()).find("H5Dcreate2") != std::string::npos);
+    CHECK(std::string(e.what()).find("HDF5 call H5") != std::string::npos);
   }
-  // The writer stays usable after a failed call.
-  writer.write_array("/y", {1}, &x, "1");
+  writer.erase("/x");
+  writer.write_array("/y", {1}, &x, "1");  // the writer stays usable after a failed call
   writer.close();
   CHECK_THROWS_AS(writer.flush(), std::logic_error);
   CHECK_THROWS_AS(H5Writer::create(scratch.file("zero.h5")).create_series("/z", {0}, "1"),
