@@ -112,6 +112,36 @@ void remove_folder(const std::string& dir) {
   ::rmdir(dir.c_str());
 }
 
+// One mapping of a virtual dataset: its source file and the rows it supplies.
+struct VirtualSource {
+  hsize_t first_row;
+  hsize_t rows;
+  std::string file;
+};
+
+// The mappings of a virtual dataset's creation property list, in row order (none for a
+// dataset of another layout).
+std::vector<VirtualSource> virtual_sources(hid_t dcpl) {
+  std::vector<VirtualSource> out;
+  if (H5Pget_layout(dcpl) != H5D_VIRTUAL) return out;
+  std::size_t count = 0;
+  h5check(H5Pget_virtual_count(dcpl, &count), "H5Pget_virtual_count");
+  for (std::size_t i = 0; i < count; ++i) {
+    const ssize_t len = h5check(H5Pget_virtual_filename(dcpl, i, nullptr, 0),
+                                "H5Pget_virtual_filename");
+    std::string name(static_cast<std::size_t>(len) + 1, '\0');
+    h5check(H5Pget_virtual_filename(dcpl, i, name.data(), name.size()), "H5Pget_virtual_filename");
+    name.resize(static_cast<std::size_t>(len));
+    const H5DataspaceId vspace{h5check(H5Pget_virtual_vspace(dcpl, i), "H5Pget_virtual_vspace")};
+    hsize_t lo[H5S_MAX_RANK], hi[H5S_MAX_RANK];
+    h5check(H5Sget_select_bounds(vspace.get(), lo, hi), "H5Sget_select_bounds");
+    out.push_back({lo[0], hi[0] - lo[0] + 1, std::move(name)});
+  }
+  std::sort(out.begin(), out.end(),
+            [](const VirtualSource& a, const VirtualSource& b) { return a.first_row < b.first_row; });
+  return out;
+}
+
 }  // namespace
 
 H5Writer::H5Writer(H5Writer&& o) noexcept
@@ -189,34 +219,15 @@ H5Writer H5Writer::resume(const std::string& path, Options options,
   {
     const H5DatasetId ds = open_series(reference_series);
     const H5PropListId dcpl{h5check(H5Dget_create_plist(ds.get()), "H5Dget_create_plist")};
-    if (H5Pget_layout(dcpl.get()) == H5D_VIRTUAL) {
-      std::size_t count = 0;
-      h5check(H5Pget_virtual_count(dcpl.get(), &count), "H5Pget_virtual_count");
-      std::vector<std::pair<hsize_t, Segment>> found;
-      for (std::size_t i = 0; i < count; ++i) {
-        const ssize_t len = H5Pget_virtual_filename(dcpl.get(), i, nullptr, 0);
-        std::string name(static_cast<std::size_t>(std::max<ssize_t>(len, 0)) + 1, '\0');
-        h5check(H5Pget_virtual_filename(dcpl.get(), i, name.data(), name.size()),
-                "H5Pget_virtual_filename");
-        name.resize(static_cast<std::size_t>(len));
-        const H5DataspaceId vspace{h5check(H5Pget_virtual_vspace(dcpl.get(), i),
-                                           "H5Pget_virtual_vspace")};
-        hsize_t lo[H5S_MAX_RANK], hi[H5S_MAX_RANK];
-        h5check(H5Sget_select_bounds(vspace.get(), lo, hi),
-                "H5Sget_select_bounds");
-        const std::string prefix = w.parts_name_ + "/";
-        if (name.compare(0, prefix.size(), prefix) != 0)
-          throw refuse("segment " + name + " is not in " + w.parts_dir_);
-        found.push_back({lo[0], Segment{name.substr(prefix.size()), hi[0] - lo[0] + 1}});
-      }
-      std::sort(found.begin(), found.end(),
-                [](const auto& a, const auto& b) { return a.first < b.first; });
-      for (auto& f : found) {
-        unsigned number = 0;
-        if (std::sscanf(f.second.name.c_str(), "seg-%u.h5", &number) == 1)
-          w.next_segment_ = std::max(w.next_segment_, number + 1);
-        w.segments_.push_back(std::move(f.second));
-      }
+    for (VirtualSource& v : virtual_sources(dcpl.get())) {
+      const std::string prefix = w.parts_name_ + "/";
+      if (v.file.compare(0, prefix.size(), prefix) != 0)
+        throw refuse("segment " + v.file + " is not in " + w.parts_dir_);
+      const std::string name = v.file.substr(prefix.size());
+      unsigned number = 0;
+      if (std::sscanf(name.c_str(), "seg-%u.h5", &number) == 1)
+        w.next_segment_ = std::max(w.next_segment_, number + 1);
+      w.segments_.push_back(Segment{name, v.rows, 0});
     }
   }
   const H5DatasetId ds = open_series(reference_series);
