@@ -123,13 +123,14 @@ def check_file(path, rows, exact=False, status=(b"running",), hold_open=0.0, who
     whole: read whole datasets; rows past `rows` may be there already, and each must then equal
     its index or be NaN (the fill value, if the reader saw a length before the rows behind it).
     Otherwise only the first `rows` rows are read.
-    hold_open: seconds to keep the file open before reading, as an interactive reader would,
+    hold_open: seconds to keep the file open before reading, as an interactive reader would
+    (or a function to call while it is open, which waits for the writer),
     while the writer goes on committing.
     """
     problems = []
     try:
         with h5py.File(path, "r") as f:
-            time.sleep(hold_open)
+            hold_open() if callable(hold_open) else time.sleep(hold_open)
             lengths = {}
             for name, (row_shape, units) in SERIES.items():
                 if name not in f:
@@ -433,11 +434,21 @@ def main():
                 time.sleep(rng.uniform(0.0, 0.05))
                 hold = 0.0 if i % 2 == 0 else rng.uniform(0.05, 0.3)
                 rows, reports = w.durable(), w.reports
-                problems = check_file(path, rows, hold_open=hold)
+                held = [0.0]
+
+                def hold_open():
+                    # Held for `hold` seconds and at least five publications of the writer.
+                    start = time.monotonic()
+                    time.sleep(hold)
+                    w.wait_reports(reports + 5, timeout=20)
+                    held[0] = time.monotonic() - start
+
+                problems = check_file(path, rows, hold_open=hold_open if hold > 0 else 0.0)
                 if not w.running():
                     problems.append("writer stopped during the read: not a live read")
                 if hold > 0 and w.reports - reports < 5:
                     problems.append(f"only {w.reports - reports} flushes while held open")
+                hold = held[0]
                 record(f"live read {i}: >= {rows} rows, open {hold:.2f} s while the writer "
                        f"flushed {w.reports - reports} times", problems)
             reads, problems, start = 0, [], time.monotonic()
