@@ -3,7 +3,7 @@
 //  - a fixed-fixed chain of equal masses joined by springs and dashpots, with the
 //    interleaved state (x_1, v_1, x_2, v_2, ...) and band Jacobian of the tether model;
 //  - a single damped oscillator, for stop times, roots, failures and restarts.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <algorithm>
 #include <cmath>
