@@ -42,9 +42,11 @@ inline constexpr int kLinearSolverFailed = SUNLS_PACKAGE_FAIL_UNREC;
 #endif
 
 // Whether serial vectors get the compiled arithmetic of sundials_fast_vector.cpp instead of
-// the library's: Debian 12's SUNDIALS 6.4 is built without optimisation, which made its
-// vector operations dominate every run. HAWSER_LIBRARY_VECTOR_OPS (CMake option
-// HAWSER_FAST_VECTORS=OFF) keeps the library's, to measure the difference.
+// the library's. Debian builds SUNDIALS' C code without optimisation on both releases (13's
+// sundials_config.h: C flags "-fcommon", and SUNDIALS_ENABLE_ERROR_CHECKS on), so it wins on
+// both: bench_tether p1 1000 esdirk, best of 3, 0.58 s against 3.09 s on 6.4 and 0.54 s
+// against 2.55 s on 7.1 (p1 1000 bdf: 1.11/5.67 s and 1.09/5.04 s). HAWSER_LIBRARY_VECTOR_OPS
+// (CMake option HAWSER_FAST_VECTORS=OFF) keeps the library's, to measure it again.
 #if defined(HAWSER_LIBRARY_VECTOR_OPS)
 inline constexpr bool kCompiledVectorOps = false;
 #else
