@@ -2,12 +2,12 @@
 
 #include <nvector/nvector_serial.h>
 
-#include "solver/sundials_compat.hpp"
-
 #include <algorithm>
 #include <cmath>
 #include <limits>
 #include <vector>
+
+#include "solver/sundials_compat.hpp"
 
 namespace hawser::sundials {
 namespace {
