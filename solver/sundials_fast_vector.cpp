@@ -108,7 +108,9 @@ real wsqr_sum_mask(N_Vector x, N_Vector w, N_Vector id) {
   return s;
 }
 real wrms_norm(N_Vector x, N_Vector w) { return std::sqrt(wsqr_sum(x, w) / n(x)); }
-real wrms_norm_mask(N_Vector x, N_Vector w, N_Vector id) { return std::sqrt(wsqr_sum_mask(x, w, id) / n(x)); }
+real wrms_norm_mask(N_Vector x, N_Vector w, N_Vector id) {
+  return std::sqrt(wsqr_sum_mask(x, w, id) / n(x));
+}
 real min_value(N_Vector x) {
   const double* xd = d(x);
   double m = xd[0];

@@ -650,7 +650,8 @@ TEST_CASE("environment and event keys: bad input is refused with its location", 
     }
     return std::string("(no error)");
   }();
-  CHECK_THAT(mars, ContainsSubstring("environment.tides.sun") && ContainsSubstring("not the Earth"));
+  CHECK_THAT(mars, ContainsSubstring("environment.tides.sun") &&
+                       ContainsSubstring("not the Earth"));
 }
 
 TEST_CASE("the storm and cut scenarios load and run, shortened", "[environment][scenario]") {
