@@ -7,6 +7,8 @@
 #include <limits>
 #include <vector>
 
+#include "solver/sundials_compat.hpp"
+
 namespace hawser::sundials {
 namespace {
 
@@ -21,13 +23,13 @@ namespace {
 inline double* d(N_Vector v) { return NV_DATA_S(v); }
 inline sunindextype n(N_Vector v) { return NV_LENGTH_S(v); }
 
-HAWSER_VECTOR_CLONES void linear_sum(realtype a, N_Vector x, realtype b, N_Vector y, N_Vector z) {
+HAWSER_VECTOR_CLONES void linear_sum(real a, N_Vector x, real b, N_Vector y, N_Vector z) {
   const double *xd = d(x), *yd = d(y);
   double* zd = d(z);
   const sunindextype len = n(x);
   for (sunindextype i = 0; i < len; ++i) zd[i] = a * xd[i] + b * yd[i];
 }
-void constant(realtype c, N_Vector z) { std::fill(d(z), d(z) + n(z), c); }
+void constant(real c, N_Vector z) { std::fill(d(z), d(z) + n(z), c); }
 void prod(N_Vector x, N_Vector y, N_Vector z) {
   const double *xd = d(x), *yd = d(y);
   double* zd = d(z);
@@ -38,7 +40,7 @@ void div(N_Vector x, N_Vector y, N_Vector z) {
   double* zd = d(z);
   for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = xd[i] / yd[i];
 }
-HAWSER_VECTOR_CLONES void scale(realtype c, N_Vector x, N_Vector z) {
+HAWSER_VECTOR_CLONES void scale(real c, N_Vector x, N_Vector z) {
   const double* xd = d(x);
   double* zd = d(z);
   for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = c * xd[i];
@@ -53,7 +55,7 @@ HAWSER_VECTOR_CLONES void inverse(N_Vector x, N_Vector z) {
   double* zd = d(z);
   for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = 1.0 / xd[i];
 }
-void add_const(N_Vector x, realtype b, N_Vector z) {
+void add_const(N_Vector x, real b, N_Vector z) {
   const double* xd = d(x);
   double* zd = d(z);
   for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = xd[i] + b;
@@ -76,11 +78,11 @@ inline __attribute__((always_inline)) double lane_sum(sunindextype len, Term ter
   return s;
 }
 
-HAWSER_VECTOR_CLONES realtype dot(N_Vector x, N_Vector y) {
+HAWSER_VECTOR_CLONES real dot(N_Vector x, N_Vector y) {
   const double *xd = d(x), *yd = d(y);
   return lane_sum(n(x), [=](sunindextype i) { return xd[i] * yd[i]; });
 }
-realtype max_norm(N_Vector x) {
+real max_norm(N_Vector x) {
   const double* xd = d(x);
   double m = 0.0;
   const sunindextype len = n(x);
@@ -88,14 +90,14 @@ realtype max_norm(N_Vector x) {
   for (sunindextype i = 0; i < len; ++i) m = std::max(m, std::abs(xd[i]));
   return m;
 }
-HAWSER_VECTOR_CLONES realtype wsqr_sum(N_Vector x, N_Vector w) {
+HAWSER_VECTOR_CLONES real wsqr_sum(N_Vector x, N_Vector w) {
   const double *xd = d(x), *wd = d(w);
   return lane_sum(n(x), [=](sunindextype i) {
     const double p = xd[i] * wd[i];
     return p * p;
   });
 }
-realtype wsqr_sum_mask(N_Vector x, N_Vector w, N_Vector id) {
+real wsqr_sum_mask(N_Vector x, N_Vector w, N_Vector id) {
   const double *xd = d(x), *wd = d(w), *md = d(id);
   double s = 0.0;
   for (sunindextype i = 0, len = n(x); i < len; ++i)
@@ -105,16 +107,18 @@ realtype wsqr_sum_mask(N_Vector x, N_Vector w, N_Vector id) {
     }
   return s;
 }
-realtype wrms_norm(N_Vector x, N_Vector w) { return std::sqrt(wsqr_sum(x, w) / n(x)); }
-realtype wrms_norm_mask(N_Vector x, N_Vector w, N_Vector id) { return std::sqrt(wsqr_sum_mask(x, w, id) / n(x)); }
-realtype min_value(N_Vector x) {
+real wrms_norm(N_Vector x, N_Vector w) { return std::sqrt(wsqr_sum(x, w) / n(x)); }
+real wrms_norm_mask(N_Vector x, N_Vector w, N_Vector id) {
+  return std::sqrt(wsqr_sum_mask(x, w, id) / n(x));
+}
+real min_value(N_Vector x) {
   const double* xd = d(x);
   double m = xd[0];
   for (sunindextype i = 1, len = n(x); i < len; ++i) m = std::min(m, xd[i]);
   return m;
 }
-realtype wl2_norm(N_Vector x, N_Vector w) { return std::sqrt(wsqr_sum(x, w)); }
-realtype l1_norm(N_Vector x) {
+real wl2_norm(N_Vector x, N_Vector w) { return std::sqrt(wsqr_sum(x, w)); }
+real l1_norm(N_Vector x) {
   const double* xd = d(x);
   double s = 0.0;
   const sunindextype len = n(x);
@@ -122,12 +126,12 @@ realtype l1_norm(N_Vector x) {
   for (sunindextype i = 0; i < len; ++i) s += std::abs(xd[i]);
   return s;
 }
-void compare(realtype c, N_Vector x, N_Vector z) {
+void compare(real c, N_Vector x, N_Vector z) {
   const double* xd = d(x);
   double* zd = d(z);
   for (sunindextype i = 0, len = n(x); i < len; ++i) zd[i] = std::abs(xd[i]) >= c ? 1.0 : 0.0;
 }
-booleantype inv_test(N_Vector x, N_Vector z) {
+boolean inv_test(N_Vector x, N_Vector z) {
   const double* xd = d(x);
   double* zd = d(z);
   bool ok = true;
@@ -142,7 +146,7 @@ booleantype inv_test(N_Vector x, N_Vector z) {
 // z = sum_k c_k x_k over up to four vectors at once (accumulate: z += ...), one pass over z.
 // z may be x[0] (SUNDIALS allows it): each z[i] is read before it is written.
 template <int M>
-inline __attribute__((always_inline)) void combine(const realtype* c, N_Vector* x, double* zd, sunindextype len,
+inline __attribute__((always_inline)) void combine(const real* c, N_Vector* x, double* zd, sunindextype len,
                                                    bool accumulate) {
   const double* xk[M];
   double ck[M];
@@ -165,7 +169,7 @@ inline __attribute__((always_inline)) void combine(const realtype* c, N_Vector* 
   }
 }
 
-HAWSER_VECTOR_CLONES int linear_combination(int nv, realtype* c, N_Vector* x, N_Vector z) {
+HAWSER_VECTOR_CLONES int linear_combination(int nv, real* c, N_Vector* x, N_Vector z) {
   // Four vectors per pass: ARKODE's stage sums combine up to a dozen vectors, and a pass per
   // vector made them the largest cost after the Newton solve.
   const sunindextype len = n(z);
@@ -179,9 +183,9 @@ HAWSER_VECTOR_CLONES int linear_combination(int nv, realtype* c, N_Vector* x, N_
       default: combine<4>(c + k, x + k, zd, len, accumulate); break;
     }
   }
-  return 0;
+  return kSuccess;
 }
-HAWSER_VECTOR_CLONES int scale_add_multi(int nv, realtype* a, N_Vector x, N_Vector* y, N_Vector* z) {
+HAWSER_VECTOR_CLONES int scale_add_multi(int nv, real* a, N_Vector x, N_Vector* y, N_Vector* z) {
   const double* xd = d(x);
   const sunindextype len = n(x);
   for (int k = 0; k < nv; ++k) {
@@ -190,33 +194,33 @@ HAWSER_VECTOR_CLONES int scale_add_multi(int nv, realtype* a, N_Vector x, N_Vect
     const double ak = a[k];
     for (sunindextype i = 0; i < len; ++i) zd[i] = ak * xd[i] + yd[i];
   }
-  return 0;
+  return kSuccess;
 }
-int dot_prod_multi(int nv, N_Vector x, N_Vector* y, realtype* out) {
+int dot_prod_multi(int nv, N_Vector x, N_Vector* y, real* out) {
   for (int k = 0; k < nv; ++k) out[k] = dot(x, y[k]);
-  return 0;
+  return kSuccess;
 }
-int linear_sum_array(int nv, realtype a, N_Vector* x, realtype b, N_Vector* y, N_Vector* z) {
+int linear_sum_array(int nv, real a, N_Vector* x, real b, N_Vector* y, N_Vector* z) {
   for (int k = 0; k < nv; ++k) linear_sum(a, x[k], b, y[k], z[k]);
-  return 0;
+  return kSuccess;
 }
-int scale_array(int nv, realtype* c, N_Vector* x, N_Vector* z) {
+int scale_array(int nv, real* c, N_Vector* x, N_Vector* z) {
   for (int k = 0; k < nv; ++k) scale(c[k], x[k], z[k]);
-  return 0;
+  return kSuccess;
 }
-int const_array(int nv, realtype c, N_Vector* z) {
+int const_array(int nv, real c, N_Vector* z) {
   for (int k = 0; k < nv; ++k) constant(c, z[k]);
-  return 0;
+  return kSuccess;
 }
-int wrms_norm_array(int nv, N_Vector* x, N_Vector* w, realtype* out) {
+int wrms_norm_array(int nv, N_Vector* x, N_Vector* w, real* out) {
   for (int k = 0; k < nv; ++k) out[k] = wrms_norm(x[k], w[k]);
-  return 0;
+  return kSuccess;
 }
-int wrms_norm_mask_array(int nv, N_Vector* x, N_Vector* w, N_Vector id, realtype* out) {
+int wrms_norm_mask_array(int nv, N_Vector* x, N_Vector* w, N_Vector id, real* out) {
   for (int k = 0; k < nv; ++k) out[k] = wrms_norm_mask(x[k], w[k], id);
-  return 0;
+  return kSuccess;
 }
-int scale_add_multi_array(int nv, int ns, realtype* a, N_Vector* x, N_Vector** y, N_Vector** z) {
+int scale_add_multi_array(int nv, int ns, real* a, N_Vector* x, N_Vector** y, N_Vector** z) {
   // z[j][i] = a[j] * x[i] + y[j][i]  (nvector_serial.c, 6.4)
   for (int i = 0; i < nv; ++i) {
     const double* xd = d(x[i]);
@@ -227,16 +231,16 @@ int scale_add_multi_array(int nv, int ns, realtype* a, N_Vector* x, N_Vector** y
       for (sunindextype k = 0; k < len; ++k) zd[k] = a[j] * xd[k] + yd[k];
     }
   }
-  return 0;
+  return kSuccess;
 }
-int linear_combination_array(int nv, int ns, realtype* c, N_Vector** x, N_Vector* z) {
+int linear_combination_array(int nv, int ns, real* c, N_Vector** x, N_Vector* z) {
   // z[i] = sum_j c[j] * x[j][i]
   std::vector<N_Vector> column(static_cast<std::size_t>(ns));
   for (int i = 0; i < nv; ++i) {
     for (int j = 0; j < ns; ++j) column[j] = x[j][i];
     linear_combination(ns, c, column.data(), z[i]);
   }
-  return 0;
+  return kSuccess;
 }
 
 }  // namespace

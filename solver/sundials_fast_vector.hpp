@@ -1,15 +1,17 @@
 #pragma once
 // Compiled replacements for the arithmetic of SUNDIALS' serial N_Vector.
 //
-// Why: Debian 12's SUNDIALS 6.4.1 libraries are built without optimisation (their
-// machine code keeps every local on the stack), so N_VLinearSum and friends cost about
-// 20 instructions per element; at 6,000 state components they dominated the run time
-// (callgrind: 70% of all instructions in a 100-element run). SUNDIALS lets a vector carry
+// Why: Debian's SUNDIALS libraries (6.4.1 on Debian 12, 7.1.1 on 13) are built without
+// optimisation (their machine code keeps every local on the stack), so N_VLinearSum and
+// friends cost about 20 instructions per element; at 6,000 state components they dominated
+// the run time (callgrind on 6.4: 70% of all instructions in a 100-element run; the figures
+// on both releases are in sundials_compat.hpp). SUNDIALS lets a vector carry
 // its own operations table; install_fast_serial_ops() replaces the arithmetic entries of
 // a serial vector's table with the same operations compiled here with the project's flags.
 // Clones copy the table, so every vector the integrator makes from this one inherits it.
 // Semantics follow nvector_serial.c of SUNDIALS 6.4 (BSD-3-Clause) operation by operation;
-// tests/unit/test_fast_vector.cpp checks each against the library's own implementation.
+// tests/unit/test_fast_vector.cpp checks each against the library's own implementation, on
+// whichever SUNDIALS it is built with (7.1 included).
 #include <sundials/sundials_nvector.h>
 
 namespace hawser::sundials {

@@ -1,6 +1,7 @@
 #pragma once
 // Owning wrappers for SUNDIALS handles and the one checked-call path into SUNDIALS.
 // Only solver/time_integrator.cpp includes this header: no other file sees a SUNDIALS type.
+// What differs between SUNDIALS 6 and 7 is in sundials_compat.hpp.
 //
 // Every SUNDIALS object is created inside a SUNContext and must be freed before it, so an
 // owner of the context is declared before (and therefore destroyed after) everything else.
@@ -14,13 +15,14 @@
 #include <cvode/cvode_ls.h>
 #include <nvector/nvector_serial.h>
 
-#include "solver/sundials_fast_vector.hpp"
 #include <sundials/sundials_context.h>
 #include <sundials/sundials_linearsolver.h>
 #include <sundials/sundials_matrix.h>
 #include <sundials/sundials_nonlinearsolver.h>
 
 #include "solver/errors.hpp"
+#include "solver/sundials_compat.hpp"
+#include "solver/sundials_fast_vector.hpp"
 
 namespace hawser::sundials {
 
@@ -45,12 +47,20 @@ inline void check(int flag, const char* call, FlagNamer namer) {
 }
 inline void check_cvode(int flag, const char* call) { check(flag, call, CVodeGetReturnFlagName); }
 inline void check_cvls(int flag, const char* call) { check(flag, call, CVodeGetLinReturnFlagName); }
-inline void check_arkode(int flag, const char* call) { check(flag, call, ARKStepGetReturnFlagName); }
+inline void check_arkode(int flag, const char* call) {
+  check(flag, call, HAWSER_ARKODE(GetReturnFlagName));
+}
+
+/// Calls the ARKODE function `name` that all its steppers share (HAWSER_ARKODE in
+/// sundials_compat.hpp) with the arguments that follow, and checks its flag.
+#define HAWSER_ARKODE_CHECKED(name, ...) \
+  ::hawser::sundials::check_arkode(HAWSER_ARKODE(name)(__VA_ARGS__), HAWSER_ARKODE_NAME(name))
 
 /// Calls outside the integrators (SUNContext_Create, SUNMatZero) return 0 on success and
 /// have no table of names.
 inline void check_status(int flag, const char* call) {
-  if (flag != 0) throw LibraryError(std::string(call) + " failed: flag " + std::to_string(flag));
+  if (flag != kSuccess)
+    throw LibraryError(std::string(call) + " failed: flag " + std::to_string(flag));
 }
 
 /// Constructors report failure by returning NULL.
@@ -81,7 +91,7 @@ struct CvodeFree {
   void operator()(void* mem) const noexcept { CVodeFree(&mem); }
 };
 struct ArkodeFree {
-  void operator()(void* mem) const noexcept { ARKStepFree(&mem); }
+  void operator()(void* mem) const noexcept { HAWSER_ARKODE(Free)(&mem); }
 };
 
 using Context = std::unique_ptr<std::remove_pointer_t<SUNContext>, ContextFree>;
@@ -95,22 +105,22 @@ using ArkodeMemory = std::unique_ptr<void, ArkodeFree>;
 
 inline Context make_context() {
   SUNContext raw = nullptr;
-  check_status(SUNContext_Create(nullptr, &raw), "SUNContext_Create");
+  check_status(create_context(&raw), "SUNContext_Create");
   return Context(raw);
 }
 
 /// A serial vector that owns no data: it is pointed at caller arrays (copy-free I/O).
-/// Serial vectors carry the compiled arithmetic of sundials_fast_vector.hpp (Debian's
-/// SUNDIALS is built unoptimised); every clone the solvers make inherits it.
+/// Serial vectors carry the compiled arithmetic of sundials_fast_vector.hpp where it is
+/// faster than the library's (kCompiledVectorOps); every clone the solvers make inherits it.
 inline Vector make_view_vector(long n, SUNContext ctx) {
   Vector v(check_created(N_VNewEmpty_Serial(n, ctx), "N_VNewEmpty_Serial"));
-  install_fast_serial_ops(v.get());
+  if (kCompiledVectorOps) install_fast_serial_ops(v.get());
   return v;
 }
 
 inline Vector make_vector(long n, SUNContext ctx) {
   Vector v(check_created(N_VNew_Serial(n, ctx), "N_VNew_Serial"));
-  install_fast_serial_ops(v.get());
+  if (kCompiledVectorOps) install_fast_serial_ops(v.get());
   return v;
 }
 

@@ -3,13 +3,14 @@
 //
 // C callbacks never let a C++ exception cross into SUNDIALS: each callback catches it,
 // stores it in the CallbackBridge and returns -1 (unrecoverable), and advance() rethrows it
-// once the solver has returned. SUNDIALS' own messages go to an error handler that keeps
-// the text for the exception instead of printing it.
+// once the solver has returned. SUNDIALS' own error messages go to a handler that keeps
+// the text for the exception instead of printing it; its warnings are silenced.
 #include "solver/time_integrator.hpp"
 
 #include <algorithm>
 #include <cmath>
 #include <exception>
+#include <functional>
 #include <limits>
 #include <sstream>
 #include <stdexcept>
@@ -70,10 +71,12 @@ struct CallbackBridge {
   std::exception_ptr error;  // first exception a callback caught since the last clear()
   std::string message;       // last error text SUNDIALS reported
   std::string non_finite;    // where the derivative first turned NaN or infinite
-  std::string stall;         // the "t + h = t" warning, once seen
-  bool stalled = false;      // SUNDIALS warned that t + h == t: the run is stuck
+  std::string stall;         // where the step first fell below round-off
+  bool stalled = false;      // t + h == t: the run is stuck (see rhs_callback)
   double rtol = 0;           // the error weights' tolerances (see weights_callback)
   std::vector<double> atol;  // one value, or one per component
+  /// The integrator's current time and next step [s] (set by the stepper).
+  std::function<void(double* t_s, double* h_s)> time_and_step;
 
   template <class Body>
   int guard(Body&& body) noexcept {
@@ -97,13 +100,29 @@ struct CallbackBridge {
 CallbackBridge& bridge_of(void* user_data) { return *static_cast<CallbackBridge*>(user_data); }
 double* data(N_Vector v) { return N_VGetArrayPointer(v); }
 
+/// True once the integrator's next step is below round-off (t + h == t), noted in the
+/// bridge. CVODE and ARKODE only warn then and "continue anyway", and can burn the whole
+/// step budget without moving (seen when f turns NaN beyond a fixed time); so the run fails
+/// instead. Asked of the integrator rather than read from its warning: SUNDIALS 7 sends
+/// warnings to its logger, not to the error handler.
+bool below_roundoff(CallbackBridge& b) {
+  if (b.stalled) return true;
+  double t_s = 0.0, h_s = 0.0;
+  b.time_and_step(&t_s, &h_s);
+  if (h_s == 0.0 || t_s + h_s != t_s) return false;  // h is 0 before the first step
+  b.stalled = true;
+  b.stall = "step size below round-off (t = " + format_time(t_s) + " s, h = " +
+            format_time(h_s) + " s: t + h == t)";
+  return true;
+}
+
 /// A non-finite derivative is reported as a recoverable failure (positive return): CVODE
 /// retries with a smaller step, which cures a NaN caused by too large a step, and gives up
 /// after repeated failures instead of stepping on with NaN; ARKStep's explicit stages
 /// treat it as unrecoverable. Checking costs well under 1 us per 6000 components.
-int rhs_callback(realtype t, N_Vector y, N_Vector ydot, void* user_data) {
+int rhs_callback(sd::real t, N_Vector y, N_Vector ydot, void* user_data) {
   CallbackBridge& b = bridge_of(user_data);
-  if (b.stalled) return -1;  // turns the stall into a failure (see error_callback)
+  if (below_roundoff(b)) return -1;  // turns the stall into a failure
   const int status = b.guard([&] { b.system.rhs(t, data(y), data(ydot)); });
   if (status != 0) return status;
   const double* f = data(ydot);
@@ -120,13 +139,13 @@ int rhs_callback(realtype t, N_Vector y, N_Vector ydot, void* user_data) {
   return 0;
 }
 
-int root_callback(realtype t, N_Vector y, realtype* g, void* user_data) {
+int root_callback(sd::real t, N_Vector y, sd::real* g, void* user_data) {
   CallbackBridge& b = bridge_of(user_data);
   return b.guard([&] { b.system.roots(t, data(y), g); });
 }
 
 /// Hands the system a view on the SUNBandMatrix storage itself (no copy), zeroed first.
-int jacobian_callback(realtype t, N_Vector y, N_Vector fy, SUNMatrix J, void* user_data,
+int jacobian_callback(sd::real t, N_Vector y, N_Vector fy, SUNMatrix J, void* user_data,
                       N_Vector, N_Vector, N_Vector) {
   CallbackBridge& b = bridge_of(user_data);
   return b.guard([&] {
@@ -173,15 +192,15 @@ void stand_in_destroy(SUNMatrix a) {
 }
 int stand_in_zero(SUNMatrix a) {
   stand_in(a).gamma = 0.0;  // A = 0 stands for "J about to be evaluated"
-  return SUNMAT_SUCCESS;
+  return sd::kSuccess;
 }
 int stand_in_copy(SUNMatrix a, SUNMatrix b) {
   stand_in(b) = stand_in(a);
-  return SUNMAT_SUCCESS;
+  return sd::kSuccess;
 }
-int stand_in_scale_add_identity(realtype c, SUNMatrix a) {
+int stand_in_scale_add_identity(sd::real c, SUNMatrix a) {
   stand_in(a).gamma = -c;  // CVODE forms A = I - gamma J as ScaleAddI(-gamma, J)
-  return SUNMAT_SUCCESS;
+  return sd::kSuccess;
 }
 
 SUNMatrix make_stand_in_matrix(SUNContext ctx) {
@@ -197,8 +216,8 @@ SUNMatrix make_stand_in_matrix(SUNContext ctx) {
 }
 
 /// Jacobian callback for the structured solver: the system evaluates and keeps J.
-int system_jacobian_callback(realtype t, N_Vector y, N_Vector, SUNMatrix, void* user_data, N_Vector, N_Vector,
-                             N_Vector) {
+int system_jacobian_callback(sd::real t, N_Vector y, N_Vector, SUNMatrix, void* user_data,
+                             N_Vector, N_Vector, N_Vector) {
   CallbackBridge& b = bridge_of(user_data);
   return b.guard([&] { b.system.newton_jacobian(t, data(y)); });
 }
@@ -214,21 +233,22 @@ SUNLinearSolver_ID newton_id(SUNLinearSolver) { return SUNLINEARSOLVER_CUSTOM; }
 int newton_setup(SUNLinearSolver ls, SUNMatrix a) {
   CallbackBridge& b = *newton_content(ls).bridge;
   const double gamma = stand_in(a).gamma;
-  return b.guard([&] { b.system.newton_factor(gamma); }) == 0 ? SUNLS_SUCCESS : SUNLS_PACKAGE_FAIL_UNREC;
+  return b.guard([&] { b.system.newton_factor(gamma); }) == 0 ? sd::kSuccess
+                                                               : sd::kLinearSolverFailed;
 }
 
-int newton_solve(SUNLinearSolver ls, SUNMatrix, N_Vector x, N_Vector b, realtype) {
+int newton_solve(SUNLinearSolver ls, SUNMatrix, N_Vector x, N_Vector b, sd::real) {
   CallbackBridge& br = *newton_content(ls).bridge;
-  return br.guard([&] { br.system.newton_solve(data(b), data(x)); }) == 0 ? SUNLS_SUCCESS
-                                                                          : SUNLS_PACKAGE_FAIL_UNREC;
+  return br.guard([&] { br.system.newton_solve(data(b), data(x)); }) == 0 ? sd::kSuccess
+                                                                          : sd::kLinearSolverFailed;
 }
 
 int newton_free(SUNLinearSolver ls) {
-  if (ls == nullptr) return SUNLS_SUCCESS;
+  if (ls == nullptr) return sd::kSuccess;
   delete static_cast<NewtonSolverContent*>(ls->content);
   ls->content = nullptr;
   SUNLinSolFreeEmpty(ls);
-  return SUNLS_SUCCESS;
+  return sd::kSuccess;
 }
 
 SUNLinearSolver make_newton_solver(CallbackBridge& bridge, SUNContext ctx) {
@@ -242,22 +262,9 @@ SUNLinearSolver make_newton_solver(CallbackBridge& bridge, SUNContext ctx) {
   return ls;
 }
 
-/// Keeps SUNDIALS' error text for the exception. Of the warnings (code 99) only one
-/// matters: "t + h = t", a step below round-off. CVODE and ARKODE then "continue anyway"
-/// and can burn the whole step budget without moving (seen when f turns NaN beyond a
-/// fixed time), so the next rhs call fails the run instead. The test is on the message
-/// text of SUNDIALS 6.4; should the wording change, the stall is only reported later.
-void error_callback(int code, const char* /*module*/, const char* function, char* msg,
-                    void* user_data) {
-  static_assert(CV_WARNING == ARK_WARNING, "one warning code for both integrators");
-  CallbackBridge& b = bridge_of(user_data);
-  const std::string text = std::string(function ? function : "SUNDIALS") + ": " + msg;
-  if (code != CV_WARNING) {
-    b.message = text;
-  } else if (text.find("t + h = t") != std::string::npos && !b.stalled) {
-    b.stalled = true;
-    b.stall = "step size below round-off (" + text + ")";
-  }
+/// Keeps SUNDIALS' error text for the exception (sd::install_error_handler).
+void error_callback(int /*code*/, const char* function, const char* msg, void* user_data) {
+  bridge_of(user_data).message = std::string(function ? function : "SUNDIALS") + ": " + msg;
 }
 
 /// Return flags that mean the caller misused the solver rather than the solver giving up.
@@ -296,7 +303,7 @@ class Stepper {
  public:
   virtual ~Stepper() = default;
   virtual void set_stop_time(double t_s) = 0;
-  /// Raw return flag of CVode / ARKStepEvolve in normal mode.
+  /// Raw return flag of CVode / ARKODE's Evolve in normal mode.
   virtual int evolve(double tout_s, N_Vector yout, double* t_reached_s) = 0;
   virtual void root_info(int* found) = 0;
   virtual void reinit(double t_s, N_Vector y) = 0;
@@ -315,7 +322,7 @@ class Stepper {
 struct LinearSolverChoice {
   sd::Matrix matrix;
   sd::LinearSolver solver;
-  int (*jacobian)(realtype, N_Vector, N_Vector, SUNMatrix, void*, N_Vector, N_Vector, N_Vector);
+  int (*jacobian)(sd::real, N_Vector, N_Vector, SUNMatrix, void*, N_Vector, N_Vector, N_Vector);
 };
 LinearSolverChoice make_linear_solver(CallbackBridge& bridge, N_Vector y0, SUNContext ctx) {
   LinearSolverChoice out;
@@ -347,7 +354,12 @@ class CvodeStepper final : public Stepper {
       : bdf_(o.method == Method::bdf), roots_(bridge.system.num_roots()), n_(N_VGetLength(y0)) {
     mem_.reset(sd::check_created(CVodeCreate(bdf_ ? CV_BDF : CV_ADAMS, ctx), "CVodeCreate"));
     void* m = mem_.get();
-    sd::check_cvode(CVodeSetErrHandlerFn(m, error_callback, &bridge), "CVodeSetErrHandlerFn");
+    bridge.time_and_step = [m](double* t_s, double* h_s) {
+      CVodeGetCurrentTime(m, t_s);
+      CVodeGetCurrentStep(m, h_s);
+    };
+    sd::check_status(sd::install_error_handler<error_callback>(ctx, m, false, &bridge),
+                     "install_error_handler (CVODE)");
     sd::check_cvode(CVodeInit(m, rhs_callback, t0, y0), "CVodeInit");
     sd::check_cvode(CVodeSetUserData(m, &bridge), "CVodeSetUserData");
     sd::check_cvode(CVodeWFtolerances(m, weights_callback), "CVodeWFtolerances");
@@ -391,7 +403,7 @@ class CvodeStepper final : public Stepper {
     });
   }
   double internal_time() override {
-    realtype t = 0;
+    sd::real t = 0;
     sd::check_cvode(CVodeGetCurrentTime(mem_.get(), &t), "CVodeGetCurrentTime");
     return t;
   }
@@ -399,7 +411,7 @@ class CvodeStepper final : public Stepper {
     void* m = mem_.get();
     SolverStats s;
     int q_current = 0;
-    realtype h_initial = 0, h_current = 0;
+    sd::real h_initial = 0, h_current = 0;
     sd::check_cvode(CVodeGetIntegratorStats(m, &s.steps, &s.rhs_evals, &s.linear_setups,
                                             &s.error_test_failures, &s.last_order, &q_current,
                                             &h_initial, &s.last_step_s, &h_current,
@@ -440,6 +452,10 @@ class ArkodeStepper final : public Stepper {
                                           : ARKStepCreate(rhs_callback, nullptr, t0, y0, ctx),
                                  "ARKStepCreate"));
     void* m = mem_.get();
+    bridge.time_and_step = [m](double* t_s, double* h_s) {
+      HAWSER_ARKODE(GetCurrentTime)(m, t_s);
+      HAWSER_ARKODE(GetCurrentStep)(m, h_s);
+    };
     if (implicit_) {
       // The implicit table of Kennedy & Carpenter's ARK3(2)4L[2]SA (Appl. Numer. Math. 44,
       // 2003): an ESDIRK of order 3 with an embedded order-2 error estimate, L-stable and
@@ -449,8 +465,8 @@ class ArkodeStepper final : public Stepper {
       LinearSolverChoice ls = make_linear_solver(bridge, y0, ctx);
       matrix_ = std::move(ls.matrix);
       linear_ = std::move(ls.solver);
-      sd::check_arkode(ARKStepSetLinearSolver(m, linear_.get(), matrix_.get()), "ARKStepSetLinearSolver");
-      sd::check_arkode(ARKStepSetJacFn(m, ls.jacobian), "ARKStepSetJacFn");
+      HAWSER_ARKODE_CHECKED(SetLinearSolver, m, linear_.get(), matrix_.get());
+      HAWSER_ARKODE_CHECKED(SetJacFn, m, ls.jacobian);
       sd::check_arkode(ARKStepSetTableNum(m, ARKODE_ARK324L2SA_DIRK_4_2_3, ARKODE_ERK_NONE),
                        "ARKStepSetTableNum");
       // A stage's derivative is deduced from its converged Newton solution,
@@ -458,37 +474,36 @@ class ArkodeStepper final : public Stepper {
       // stage starts from the previous step's dense output (the maximum-order predictor, 1)
       // rather than from y_n. Together they cut the P1 benchmark's right-hand sides from
       // 23,858 to 13,069 and Newton iterations from 11,475 to 9,976 at equal accuracy.
-      sd::check_arkode(ARKStepSetDeduceImplicitRhs(m, SUNTRUE), "ARKStepSetDeduceImplicitRhs");
-      sd::check_arkode(ARKStepSetPredictorMethod(m, 1), "ARKStepSetPredictorMethod");
+      HAWSER_ARKODE_CHECKED(SetDeduceImplicitRhs, m, SUNTRUE);
+      HAWSER_ARKODE_CHECKED(SetPredictorMethod, m, 1);
     }
-    sd::check_arkode(ARKStepSetErrHandlerFn(m, error_callback, &bridge),
-                     "ARKStepSetErrHandlerFn");
-    sd::check_arkode(ARKStepSetUserData(m, &bridge), "ARKStepSetUserData");
-    sd::check_arkode(ARKStepWFtolerances(m, weights_callback), "ARKStepWFtolerances");
-    sd::check_arkode(ARKStepSetMaxNumSteps(m, o.max_steps_between_outputs),
-                     "ARKStepSetMaxNumSteps");
-    if (o.max_step_s > 0) sd::check_arkode(ARKStepSetMaxStep(m, o.max_step_s), "ARKStepSetMaxStep");
+    sd::check_status(sd::install_error_handler<error_callback>(ctx, m, true, &bridge),
+                     "install_error_handler (ARKODE)");
+    HAWSER_ARKODE_CHECKED(SetUserData, m, &bridge);
+    HAWSER_ARKODE_CHECKED(WFtolerances, m, weights_callback);
+    HAWSER_ARKODE_CHECKED(SetMaxNumSteps, m, o.max_steps_between_outputs);
+    if (o.max_step_s > 0) HAWSER_ARKODE_CHECKED(SetMaxStep, m, o.max_step_s);
     if (o.initial_step_s > 0)
-      sd::check_arkode(ARKStepSetInitStep(m, o.initial_step_s), "ARKStepSetInitStep");
+      HAWSER_ARKODE_CHECKED(SetInitStep, m, o.initial_step_s);
     if (o.max_order > 0 && !implicit_)  // esdirk has one table (validate() allows only 3)
-      sd::check_arkode(ARKStepSetOrder(m, o.max_order), "ARKStepSetOrder");
+      HAWSER_ARKODE_CHECKED(SetOrder, m, o.max_order);
     if (roots_ > 0)
-      sd::check_arkode(ARKStepRootInit(m, roots_, root_callback), "ARKStepRootInit");
+      HAWSER_ARKODE_CHECKED(RootInit, m, roots_, root_callback);
   }
 
   void set_stop_time(double t_s) override {
-    sd::check_arkode(ARKStepSetStopTime(mem_.get(), t_s), "ARKStepSetStopTime");
+    HAWSER_ARKODE_CHECKED(SetStopTime, mem_.get(), t_s);
   }
   int evolve(double tout_s, N_Vector yout, double* t_reached_s) override {
-    return ARKStepEvolve(mem_.get(), tout_s, yout, t_reached_s, ARK_NORMAL);
+    return HAWSER_ARKODE(Evolve)(mem_.get(), tout_s, yout, t_reached_s, ARK_NORMAL);
   }
   void root_info(int* found) override {
-    sd::check_arkode(ARKStepGetRootInfo(mem_.get(), found), "ARKStepGetRootInfo");
+    HAWSER_ARKODE_CHECKED(GetRootInfo, mem_.get(), found);
   }
   long largest_error_component(SUNContext ctx) override {
     return worst_component(ctx, n_, [&](N_Vector w, N_Vector e) {
-      return ARKStepGetErrWeights(mem_.get(), w) == ARK_SUCCESS &&
-             ARKStepGetEstLocalErrors(mem_.get(), e) == ARK_SUCCESS;
+      return HAWSER_ARKODE(GetErrWeights)(mem_.get(), w) == ARK_SUCCESS &&
+             HAWSER_ARKODE(GetEstLocalErrors)(mem_.get(), e) == ARK_SUCCESS;
     });
   }
   void reinit(double t_s, N_Vector y) override {
@@ -497,41 +512,38 @@ class ArkodeStepper final : public Stepper {
     sd::check_arkode(ARKStepReInit(mem_.get(), explicit_part, implicit_part, t_s, y), "ARKStepReInit");
   }
   double internal_time() override {
-    realtype t = 0;
-    sd::check_arkode(ARKStepGetCurrentTime(mem_.get(), &t), "ARKStepGetCurrentTime");
+    sd::real t = 0;
+    HAWSER_ARKODE_CHECKED(GetCurrentTime, mem_.get(), &t);
     return t;
   }
   SolverStats segment_stats() override {
     void* m = mem_.get();
     SolverStats s;
     long implicit_evals = 0;
-    sd::check_arkode(ARKStepGetNumSteps(m, &s.steps), "ARKStepGetNumSteps");
+    HAWSER_ARKODE_CHECKED(GetNumSteps, m, &s.steps);
     sd::check_arkode(ARKStepGetNumRhsEvals(m, &s.rhs_evals, &implicit_evals),
                      "ARKStepGetNumRhsEvals");
-    sd::check_arkode(ARKStepGetNumErrTestFails(m, &s.error_test_failures),
-                     "ARKStepGetNumErrTestFails");
-    sd::check_arkode(ARKStepGetLastStep(m, &s.last_step_s), "ARKStepGetLastStep");
-    sd::check_arkode(ARKStepGetCurrentTime(m, &s.current_time_s), "ARKStepGetCurrentTime");
+    HAWSER_ARKODE_CHECKED(GetNumErrTestFails, m, &s.error_test_failures);
+    HAWSER_ARKODE_CHECKED(GetLastStep, m, &s.last_step_s);
+    HAWSER_ARKODE_CHECKED(GetCurrentTime, m, &s.current_time_s);
     ARKodeButcherTable implicit_table = nullptr, explicit_table = nullptr;
     sd::check_arkode(ARKStepGetCurrentButcherTables(m, &implicit_table, &explicit_table),
                      "ARKStepGetCurrentButcherTables");
     s.last_order = explicit_table ? explicit_table->q : (implicit_table ? implicit_table->q : 0);
     s.rhs_evals += implicit_evals;
     if (implicit_) {
-      sd::check_arkode(ARKStepGetNumNonlinSolvIters(m, &s.nonlinear_iterations),
-                       "ARKStepGetNumNonlinSolvIters");
-      sd::check_arkode(ARKStepGetNumNonlinSolvConvFails(m, &s.nonlinear_failures),
-                       "ARKStepGetNumNonlinSolvConvFails");
-      sd::check_arkode(ARKStepGetNumLinSolvSetups(m, &s.linear_setups), "ARKStepGetNumLinSolvSetups");
-      sd::check_arkode(ARKStepGetNumJacEvals(m, &s.jac_evals), "ARKStepGetNumJacEvals");
+      HAWSER_ARKODE_CHECKED(GetNumNonlinSolvIters, m, &s.nonlinear_iterations);
+      HAWSER_ARKODE_CHECKED(GetNumNonlinSolvConvFails, m, &s.nonlinear_failures);
+      HAWSER_ARKODE_CHECKED(GetNumLinSolvSetups, m, &s.linear_setups);
+      HAWSER_ARKODE_CHECKED(GetNumJacEvals, m, &s.jac_evals);
     }
-    if (roots_ > 0) sd::check_arkode(ARKStepGetNumGEvals(m, &s.root_evals), "ARKStepGetNumGEvals");
+    if (roots_ > 0) HAWSER_ARKODE_CHECKED(GetNumGEvals, m, &s.root_evals);
     return s;
   }
   std::string flag_name(int flag) override {
-    return sd::flag_name(ARKStepGetReturnFlagName, flag);
+    return sd::flag_name(HAWSER_ARKODE(GetReturnFlagName), flag);
   }
-  const char* evolve_call() const override { return "ARKStepEvolve"; }
+  const char* evolve_call() const override { return HAWSER_ARKODE_NAME(Evolve); }
 
  private:
   bool implicit_;  // esdirk (fi given), else erk (fe given)
@@ -602,7 +614,7 @@ struct TimeIntegrator::Impl {
   Impl(OdeSystem& system, double t0, const double* y0, const IntegratorOptions& o)
       : context(sd::make_context()),
         io(sd::make_view_vector(static_cast<long>(system.size()), context.get())),
-        bridge{system, nullptr, {}, {}, {}, false, 0.0, {}},
+        bridge{system, nullptr, {}, {}, {}, false, 0.0, {}, {}},
         roots_found(static_cast<std::size_t>(std::max(0, system.num_roots())), 0),
         t_last_s(t0),
         y_last(y0, y0 + system.size()) {

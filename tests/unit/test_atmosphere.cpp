@@ -1,5 +1,5 @@
 // The U.S. Standard Atmosphere 1976 model against the standard's published tables.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <cmath>
 

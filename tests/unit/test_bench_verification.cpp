@@ -11,7 +11,7 @@
 // measures frequencies and arrival times from the recorded time histories (helpers in
 // bench_helpers.hpp). All materials are invented test values, not real materials.
 // Run time of the whole file: about 2.5 s on one core (Release).
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <cmath>
 #include <string>

@@ -3,7 +3,7 @@
 // force), against an independent formulation (a climber parked on a node is that node made
 // heavier; finite differences of the right-hand side for the Newton solver) and against
 // invariants (angular momentum and the anchor's torque; the drive's work and the energy).
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <Eigen/Geometry>
 #include <algorithm>
@@ -273,7 +273,7 @@ TEST_CASE("a leg too short for the cruise speed names the reachable speed", "[cl
     FAIL("expected a ProfileError");
   } catch (const ProfileError& e) {
     const std::string m = e.what();
-    CHECK_THAT(m, Catch::Contains("never reached"));
+    CHECK_THAT(m, ContainsSubstring("never reached"));
     CHECK(quoted_speed(m) == Approx(reachable).epsilon(2e-4));  // printed to 4 digits
   }
   // The quoted speed is the boundary: just below it flies, just above it does not.

@@ -13,7 +13,7 @@
 // Statistical errors (Bartlett's formula for the variance of a sample variance of a Gaussian
 // process over a time T, Var(s^2) = (2/T) integral C(t)^2 dt):
 //   u: Var(s^2) / sigma^4 = 2 tau / T,   v, w: 1.25 tau / T.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <cmath>
 #include <complex>

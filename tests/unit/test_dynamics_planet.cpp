@@ -1,5 +1,5 @@
 // Time-domain checks of the planet tether: equilibrium, conservation laws.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <cmath>
 

@@ -1,7 +1,7 @@
 // The environment in time-domain runs (issue 5, items 5-9): drag of the wind, tides of the Moon
 // and the Sun, J2, cuts and strikes, and the keys that set them up. Every check value names
 // its source.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <Eigen/Geometry>
 #include <cmath>
@@ -630,15 +630,17 @@ TEST_CASE("environment and event keys: bad input is refused with its location", 
   for (const Case& c : cases) {
     const std::string msg = expect_input_error(bench + c.text);
     INFO(c.text << " -> " << msg);
-    CHECK_THAT(msg, Catch::Contains("env.yaml:") && Catch::Contains(c.key) && Catch::Contains(c.words));
+    CHECK_THAT(msg, ContainsSubstring("env.yaml:") && ContainsSubstring(c.key) &&
+                        ContainsSubstring(c.words));
   }
   // A turbulence series too long for memory is refused at `hawser check` already (5e7 samples).
   const std::string long_series = expect_input_error(
       bench + "simulation: {duration: 1 d, output_interval: 1 h}\n"
               "environment: {atmosphere: uniform, air_density: 1.2, turbulence: {from_direction: 0, sample_interval: "
               "0.001, stations: [{altitude: 0, mean_speed: 5, sigma: [1, 1, 1], scale: [50, 50, 50]}]}}\n");
-  CHECK_THAT(long_series, Catch::Contains("env.yaml:") && Catch::Contains("environment.turbulence") &&
-                              Catch::Contains("too long a series"));
+  CHECK_THAT(long_series, ContainsSubstring("env.yaml:") &&
+                              ContainsSubstring("environment.turbulence") &&
+                              ContainsSubstring("too long a series"));
   // Tides need the Earth's Moon and Sun: refused on Mars.
   const std::string mars = [] {
     try {
@@ -648,7 +650,8 @@ TEST_CASE("environment and event keys: bad input is refused with its location", 
     }
     return std::string("(no error)");
   }();
-  CHECK_THAT(mars, Catch::Contains("environment.tides.sun") && Catch::Contains("not the Earth"));
+  CHECK_THAT(mars, ContainsSubstring("environment.tides.sun") &&
+                       ContainsSubstring("not the Earth"));
 }
 
 TEST_CASE("the storm and cut scenarios load and run, shortened", "[environment][scenario]") {

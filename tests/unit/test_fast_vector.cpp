@@ -1,6 +1,6 @@
 // The compiled vector arithmetic (solver/sundials_fast_vector.hpp) against SUNDIALS' own
 // serial implementation, operation by operation, on the same random data.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <nvector/nvector_serial.h>
 #include <sundials/sundials_context.h>
@@ -9,6 +9,7 @@
 #include <random>
 #include <vector>
 
+#include "solver/sundials_compat.hpp"
 #include "solver/sundials_fast_vector.hpp"
 
 namespace {
@@ -16,7 +17,7 @@ struct Vectors {
   SUNContext ctx = nullptr;
   std::vector<N_Vector> ref, fast;  // same data; ref keeps the library's operations
   Vectors(int count, sunindextype n) {
-    SUNContext_Create(nullptr, &ctx);
+    hawser::sundials::create_context(&ctx);
     std::mt19937 rng(5);
     std::uniform_real_distribution<double> u(-2.0, 2.0);
     for (int k = 0; k < count; ++k) {
@@ -81,7 +82,7 @@ TEST_CASE("compiled vector operations agree with SUNDIALS' serial vector", "[int
   CHECK(N_VInvTest(f[4], f[5]) == N_VInvTest(r[4], r[5]));
 
   // Fused operations: the library's fallbacks (fused ops off on r) against ours.
-  realtype c[3] = {0.5, -1.25, 2.0};
+  hawser::sundials::real c[3] = {0.5, -1.25, 2.0};
   N_VLinearCombination(3, c, r.data(), r[5]);
   N_VLinearCombination(3, c, f.data(), f[5]);
   v.same(5);
@@ -91,7 +92,7 @@ TEST_CASE("compiled vector operations agree with SUNDIALS' serial vector", "[int
   N_VLinearCombination(2, c, fx, f[5]);
   v.same(5);
   // Nine vectors (passes of four, four and one), in place on the first: ARKODE's stage sums.
-  realtype c9[9] = {0.5, -1.25, 2.0, 0.75, -0.3, 1.1, -2.2, 0.05, 3.0};
+  hawser::sundials::real c9[9] = {0.5, -1.25, 2.0, 0.75, -0.3, 1.1, -2.2, 0.05, 3.0};
   N_Vector r9[9] = {r[5], r[0], r[1], r[2], r[3], r[4], r[0], r[1], r[2]};
   N_Vector f9[9] = {f[5], f[0], f[1], f[2], f[3], f[4], f[0], f[1], f[2]};
   for (int nv : {4, 5, 9}) {
@@ -104,7 +105,7 @@ TEST_CASE("compiled vector operations agree with SUNDIALS' serial vector", "[int
   N_VScaleAddMulti(2, c, f[0], fy, fz);
   v.same(4);
   v.same(5);
-  realtype dr[2], df[2];
+  hawser::sundials::real dr[2], df[2];
   N_VDotProdMulti(2, r[0], ry, dr);
   N_VDotProdMulti(2, f[0], fy, df);
   CHECK(df[0] == Approx(dr[0]).epsilon(1e-12));

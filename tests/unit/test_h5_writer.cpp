@@ -1,7 +1,7 @@
 // H5Writer: what is written is what an independent reader (the HDF5 C API with its default
 // driver) reads back, with units, chunking, compression, segments and resumption as documented
 // in h5_writer.hpp. Crash and live-reader behaviour is checked in tests/cli/test_h5_live_read.py.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <unistd.h>
 

@@ -1,6 +1,6 @@
 // Every analytic Jacobian against central finite differences of the force assembly
 // (style.md habit 11; the finite-difference Jacobian is the independent reference).
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <random>
 

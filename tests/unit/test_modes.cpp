@@ -2,7 +2,7 @@
 // cables on the uniform-field test bench, against finite differences of the force assembly,
 // against the structure theory of gyroscopic systems, and against time-domain runs of the
 // nonlinear model started in a computed mode.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <chrono>
 #include <cmath>

@@ -1,5 +1,5 @@
 // Tidal acceleration of the Moon and the Sun in the rotating frame.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <cmath>
 

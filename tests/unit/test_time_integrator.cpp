@@ -3,7 +3,7 @@
 //  - a fixed-fixed chain of equal masses joined by springs and dashpots, with the
 //    interleaved state (x_1, v_1, x_2, v_2, ...) and band Jacobian of the tether model;
 //  - a single damped oscillator, for stop times, roots, failures and restarts.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -401,6 +401,25 @@ TEST_CASE("exceptions in callbacks propagate; impossible runs throw IntegratorFa
           // It integrated the good part and gave up within a step of where f turns NaN.
           CHECK(e.time_s() == Approx(1.0).margin(0.05));
           CHECK(std::string(e.what()).find("not finite in component 1") != std::string::npos);
+        }
+      }
+      SECTION("a step below round-off (t + h == t) ends the run at once") {
+        // At t = 1e20 s the spacing of doubles is 16384 s, so a 1 ms step cannot move t.
+        // SUNDIALS only warns and steps on; the glue must fail the run right there rather
+        // than spend max_steps_between_outputs standing still. 6.x reported the stall in a
+        // warning to the error handler, 7.x only in its log: this checks both.
+        const double t0 = 1e20;
+        IntegratorOptions o = options(method, 1e-8, 1e-11);
+        o.initial_step_s = 1e-3;
+        TimeIntegrator integrator(osc, t0, y, o);
+        try {
+          integrator.advance(t0 + 1e6, no_stop, y);
+          FAIL("no IntegratorFailure");
+        } catch (const IntegratorFailure& e) {
+          INFO(e.what());
+          CHECK(e.time_s() == t0);
+          CHECK(std::string(e.what()).find("below round-off") != std::string::npos);
+          CHECK(osc.probe.rhs_calls < 20);  // stopped within the first step
         }
       }
     }

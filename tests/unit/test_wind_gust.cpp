@@ -1,5 +1,5 @@
 // Mean wind profiles and discrete 1-cosine gusts.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 
 #include <cmath>
 
