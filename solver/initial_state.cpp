@@ -7,7 +7,7 @@ namespace hawser {
 
 std::vector<double> reference_distance(const Mesh& mesh) {
   std::vector<double> d(mesh.nodes());
-  for (std::size_t k = 0; k < mesh.nodes(); ++k) d[k] = (mesh.position.col(k) - mesh.position.col(0)).norm();
+  for (std::size_t k = 0; k < mesh.nodes(); ++k) d[k] = (mesh.as_built_position.col(k) - mesh.as_built_position.col(0)).norm();
   return d;
 }
 
