@@ -26,6 +26,8 @@ struct Equilibrium {
   int newton_iterations = 0;
   int load_steps = 0;
   double residual_n = 0.0;        // final |R|_inf [N]
+  double fold_load_factor = 1.0;  // < 1: the continuation from the as-built state stopped there
+  int relax_iterations = 0;       // pseudo-transient steps from there to the state
 };
 
 /// The as-built tether: tension_n = as_built_tension_n. `body` are the force models other than the bars, evaluated at rest on the reference

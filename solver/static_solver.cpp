@@ -81,6 +81,7 @@ class StaticResidual {
     return *std::max_element(tension_.begin(), tension_.end());
   }
   const std::vector<double>& tensions() const { return tension_; }
+  const Eigen::VectorXd& mass() const { return mass_; }
 
  private:
 
@@ -96,6 +97,14 @@ class StaticResidual {
   SpMat j_;
   std::vector<double> tension_;
 };
+
+/// The first free node below the ground, or 0 if none.
+std::size_t below_ground(const StaticLoadSet& l, const Matrix3X& x) {
+  if (l.ground_radius_m <= 0.0) return 0;
+  for (std::size_t k = l.first_free; k <= l.last_free; ++k)
+    if (x.col(static_cast<Eigen::Index>(k)).norm() < l.ground_radius_m) return k;
+  return 0;
+}
 
 void apply(const StaticLoadSet& l, const Eigen::VectorXd& dx, double alpha, Matrix3X& x) {
   for (std::size_t k = l.first_free; k <= l.last_free; ++k)
@@ -157,7 +166,10 @@ std::string newton(StaticResidual& res, const StaticLoadSet& l, const StaticOpti
           break;
         }
       }
-      if (back == 30) return "the damped Newton step found no decrease of the simplified correction";
+      // Deuflhard's minimal damping factor: a step that must be cut further is a poor guess
+      // of this load step (measured on storm.yaml: such iterations went on shrinking alpha
+      // while |dx| grew), so give the load step back to the continuation at once.
+      if (alpha <= o.min_damping) return "the Newton step had to be damped below the minimum";
       alpha *= 0.5;
     }
     x = trial;
@@ -171,6 +183,65 @@ std::string newton(StaticResidual& res, const StaticLoadSet& l, const StaticOpti
     }
   }
   return "Newton's method did not converge in " + std::to_string(o.max_newton_iterations) + " iterations";
+}
+
+/// Pseudo-transient continuation at the full load (Kelley & Keyes, "Convergence analysis of
+/// pseudo-transient continuation", SIAM J. Numer. Anal. 35, 1998): each step solves
+///   (M / h^2 - dR/dx) dx = R(x),
+/// one implicit step of the undamped motion from rest, so the iterates follow the tether's
+/// own motion toward a state that is at rest, through slack or folded geometry that stops
+/// Newton's method. The pseudo time step h grows as the residual falls (switched evolution
+/// relaxation, Mulder & van Leer 1985: h <- h |R_old| / |R_new|, here at least doubled and at
+/// most quadrupled per step, since the residual is ruled by the fast local motions while the
+/// slow ones, such as the tilt of the whole tether (a period of days), need h of hours; with
+/// the plain rule h stayed near 10 s on scenarios/storm.yaml and the top never moved) and,
+/// once large, leaves Newton's method itself. A step that makes the residual grow tenfold is
+/// retaken with h / 4.
+std::string relax(StaticResidual& res, const StaticLoadSet& l, const StaticOptions& o, double length_m, Matrix3X& x,
+                  int& iterations, double& residual_n) {
+  Eigen::SparseLU<SpMat> lu;
+  bool analysed = false;
+  Eigen::VectorXd r = res.residual(x);
+  double h = o.relax_first_step_s;
+  Eigen::VectorXd m3(r.size());
+  for (std::size_t k = l.first_free; k <= l.last_free; ++k)
+    m3.segment<3>(static_cast<Eigen::Index>(3 * (k - l.first_free))).setConstant(res.mass()[static_cast<Eigen::Index>(k)]);
+  for (int it = 0; it < o.max_relax_iterations; ++it) {
+    std::size_t slack = 0;
+    const double t_max = res.largest_tension(x, &slack);
+    residual_n = r.lpNorm<Eigen::Infinity>();
+    if (residual_n <= o.force_tolerance * t_max && slack == res.tensions().size()) return "";
+    SpMat a = res.jacobian(x);
+    a.diagonal() -= m3 / (h * h);
+    if (!analysed) {
+      lu.analyzePattern(a);
+      analysed = true;
+    }
+    lu.factorize(a);
+    ++iterations;
+    const Eigen::VectorXd dx = lu.info() == Eigen::Success ? Eigen::VectorXd(lu.solve(-r)) : Eigen::VectorXd();
+    Matrix3X trial = x;
+    Eigen::VectorXd rt;
+    if (dx.size() && dx.allFinite()) {
+      apply(l, dx, 1.0, trial);
+      rt = res.residual(trial);
+    }
+    if (!rt.size() || !rt.allFinite() || rt.norm() > 10.0 * r.norm()) {
+      h *= 0.25;
+      continue;
+    }
+    h *= std::max(2.0, std::min(4.0, r.norm() / rt.norm()));
+    x = trial;
+    r = rt;
+    if (const std::size_t k = below_ground(l, x))
+      return "node " + std::to_string(k) + " went below the ground (the tether falls)";
+    if (h > o.relax_newton_step_s && dx.lpNorm<Eigen::Infinity>() <= o.position_tolerance * length_m) {
+      res.largest_tension(x, &slack);
+      residual_n = r.lpNorm<Eigen::Infinity>();
+      if (slack == res.tensions().size()) return "";
+    }
+  }
+  return "no state at rest after " + std::to_string(o.max_relax_iterations) + " steps of pseudo-transient relaxation";
 }
 
 }  // namespace
@@ -191,6 +262,8 @@ StaticState solve_static(const StaticLoadSet& l, const Matrix3X& as_built_m, con
     res.set_load(target);
     double residual_n = 0.0;
     why = newton(res, l, o, length_m, trial, out.newton_iterations, residual_n);
+    if (why.empty())
+      if (const std::size_t k = below_ground(l, trial)) why = "node " + std::to_string(k) + " went below the ground";
     if (why.empty()) {
       previous = x;
       lambda_previous = lambda;
@@ -204,10 +277,23 @@ StaticState solve_static(const StaticLoadSet& l, const Matrix3X& as_built_m, con
     ++out.failed_steps;
     step *= 0.5;
     if (step < o.min_load_step || out.load_steps + out.failed_steps > o.max_load_steps) {
+      // The branch of states grown from the as-built one ends here (a fold, or a load the
+      // tether cannot hold): let the tether move under the full load from the last state.
+      out.fold_load_factor = lambda;
+      res.set_load(1.0);
+      double residual_n = 0.0;
+      Matrix3X relaxed = x;
+      const std::string why_relax = relax(res, l, o, length_m, relaxed, out.relax_iterations, residual_n);
+      if (why_relax.empty()) {
+        x = relaxed;
+        out.residual_n = residual_n;
+        break;
+      }
       std::ostringstream os;
-      os << "static state: no equilibrium of the as-built tether under " << l.description
+      os << "error: static state: no equilibrium of the as-built tether under " << l.description
          << ": the continuation in load reached " << 100.0 * lambda << "% of it (" << why
-         << " beyond that; a slack base or a load the tether cannot hold?)";
+         << " beyond that), and from there " << why_relax
+         << " under the whole load (a slack base, or a load the tether cannot hold?)";
       throw InputError(os.str());
     }
   }

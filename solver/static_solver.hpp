@@ -22,8 +22,18 @@
 // the mean wind's drag). At lambda = 0 the as-built geometry is the solution. The first
 // attempt is the whole load in one step; a step whose Newton iteration fails is halved and
 // retried from the last converged state, a successful one lets the next grow again.
-// When the step falls below `min_load_step`, there is no equilibrium reached by this path
-// (for example the base goes slack): InputError, naming the load and the factor reached.
+// A load step counts only if Newton's method converged without damping below min_damping:
+// a heavily damped iteration may end on another branch of states far from the one followed
+// (measured on scenarios/storm.yaml: with any damping allowed, the end state depended on the
+// step sequence; two of them differed by 13 km at the top).
+// When the step falls below `min_load_step`, the branch of states grown from the as-built one
+// ends before the whole load (a fold: on scenarios/storm.yaml, where the mean wind's drag on
+// the upright ribbon, 420 kN, is twice the base tension, the lean runs away at 96.6 % of the
+// wind). From the last state on the branch, pseudo-transient relaxation under the whole load
+// (Kelley & Keyes 1998; see relax() in the .cpp) lets the tether move to a state at rest on
+// another branch, if there is one (in the storm: the lower ribbon blown down to a shallow
+// slope). When that fails too (for example the base goes slack and the tether falls), there
+// is no equilibrium: InputError, naming the load and the factor the continuation reached.
 //
 // Converged when |R|_inf <= force_tolerance * (largest element tension), or when the Newton
 // correction (or the simplified one after a full step) moves no node by more than
@@ -46,14 +56,22 @@ struct StaticLoadSet {
   Eigen::VectorXd built_mass_kg;           // (N+1) node masses of the as-built tether [kg]
   Eigen::VectorXd loaded_mass_kg;          // (N+1) node masses under load [kg]
   std::size_t first_free = 1, last_free = 0;  // nodes that move; the others are held
+  /// Free nodes may not come closer to the centre than this [m]: the ground, whose contact is
+  /// not modelled (0: no ground, the test bench). A state below it is no equilibrium: a
+  /// tether whose base goes slack otherwise "hangs" its lower part through the planet.
+  double ground_radius_m = 0.0;
 };
 
 struct StaticOptions {
   double force_tolerance = 1e-11;      // of the largest tension [-]
   double position_tolerance = 1e-12;   // of the tether length [-]
   int max_newton_iterations = 15;      // per load step (a failed step is halved)
+  double min_damping = 1.0;            // smallest damping factor before the load step fails
   double min_load_step = 1.0 / 4096;
   int max_load_steps = 2000;
+  double relax_first_step_s = 10.0;    // first pseudo time step [s]
+  double relax_newton_step_s = 1e8;    // pseudo time step beyond which a step is Newton's [s]
+  int max_relax_iterations = 400;
 };
 
 struct StaticState {
@@ -62,6 +80,8 @@ struct StaticState {
   int newton_iterations = 0;           // over all load steps
   int load_steps = 0;                  // successful steps of the continuation
   int failed_steps = 0;                // steps halved
+  double fold_load_factor = 1.0;       // where the continuation's branch ended (1: it did not)
+  int relax_iterations = 0;            // steps of pseudo-transient relaxation past it
   double residual_n = 0.0;             // final |R|_inf [N]
 };
 

@@ -125,6 +125,7 @@ TetherModel build_model(const Scenario& sc) {
   loads.loaded_mass_kg = m.mesh.node_mass;
   loads.first_free = 1;
   loads.last_free = m.mesh.nodes() - (m.far_end ? 2 : 1);
+  loads.ground_radius_m = m.reference_radius_m;  // the anchor is on it; 0 on the bench
   if (!loads.added.empty() || loads.loaded_mass_kg != loads.built_mass_kg) {
     std::vector<Climber> in_state;
     for (const Climber& c : parked_climbers)
@@ -139,6 +140,15 @@ TetherModel build_model(const Scenario& sc) {
       m.equilibrium.tension_n = st.tension_n;
     }
     m.equilibrium.load_case = loads.description;
+    if (st.fold_load_factor < 1.0) {
+      char note[160];
+      std::snprintf(note, sizeof note,
+                    " (continuation stopped at %.4g %% of the load; reached by pseudo-transient relaxation)",
+                    100.0 * st.fold_load_factor);
+      m.equilibrium.load_case += note;
+    }
+    m.equilibrium.fold_load_factor = st.fold_load_factor;
+    m.equilibrium.relax_iterations = st.relax_iterations;
     m.equilibrium.newton_iterations = st.newton_iterations;
     m.equilibrium.load_steps = st.load_steps;
     m.equilibrium.residual_n = st.residual_n;
