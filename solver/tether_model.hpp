@@ -29,6 +29,8 @@ struct TetherModel {
   std::unique_ptr<BarElements> bars;
   std::vector<std::shared_ptr<ForceModel>> body;  // gravity, frame, ... (not the bars); shared
                                                  // with the climbers, which feel some of them
+  std::size_t static_body_models = 0;             // the first ones (gravity, frame) act in
+                                                 // every static state; the rest (drag, tides) not
   std::unique_ptr<PrescribedMotion> anchor;       // node 0
   std::unique_ptr<PrescribedMotion> far_end;      // node N, or null when free
   double ultimate_strength_pa = 0.0;
@@ -48,6 +50,11 @@ struct TetherModel {
   /// turbulence): the forces about the static state, which the modes linearise.
   std::vector<const ForceModel*> mean_forces() const;
 };
+
+/// The as-built tether of a validated scenario and its force models, with no load on it:
+/// Mesh::position is the as-built geometry (node masses carry the scenario's counterweight,
+/// mean_drag the mean wind, for solver/static_loads.hpp to hang on it).
+TetherModel build_as_built(const Scenario& scenario);
 
 /// Builds the model of a validated scenario: the as-built tether (design, mesh, L0 of the
 /// unloaded design with its computed counterweight), its force models, and the static
