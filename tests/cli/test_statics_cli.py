@@ -14,8 +14,10 @@ WGS 84 constants as config/planets.yaml (NIMA TR8350.2, Table 3.1; J2 recalled f
 Required agreement: 1e-6 relative in tensions, 1 m in positions.
 
 Also: the result file records the static state's load case and the as-built mesh; the L0 are
-those of the tether without the climber; and a climber whose weight the base cannot hold
-makes hawser refuse the scenario (exit 2) naming the load and the load factor reached.
+those of the tether without the climber; a climber whose weight the base cannot hold makes
+hawser refuse the scenario (exit 2) naming the load and the load factor reached; the load-case
+table of `hawser design` gives the same static state for the same climber, warns on a case
+with no equilibrium or a small margin, and its keys are validated with file:line:column.
 
 Run by ctest as: python3 test_statics_cli.py --hawser BIN --source DIR
 """
@@ -128,6 +130,65 @@ def main():
                 "a load the base cannot hold is refused (exit 2), naming the load and the step reached",
                 f"exit {p.returncode}: {p.stderr.strip()[-400:]!r}")
         c.check(not os.path.exists(os.path.join(tmp, "slack.h5")), "nothing written for it")
+
+        # The load-case table of `hawser design`: the same climber as a load case gives the
+        # same static state as the run above (base tension, top and climber displacement);
+        # a heavier counterweight lifts the top; a case the base cannot hold warns.
+        with open(demo) as fh:
+            text = fh.read()
+        text = text[:text.index("load_cases:")]  # the demo's own cases and checks left out
+        cases = text + (
+            "load_cases:\n"
+            f"  - name: c10 at 20000 km\n    climbers: [{{mass: {CLIMBER_KG!r} kg, altitude: {h[k]!r} m}}]\n"
+            "  - name: counterweight +5 %\n    counterweight_change: 0.05\n"
+            "  - name: too heavy low down\n    climbers: [{mass: 40 t, altitude: 100 km}]\n"
+            "load_case_checks: {min_base_margin: 0.5}\n")
+        path = os.path.join(tmp, "cases.yaml")
+        with open(path, "w") as fh:
+            fh.write(cases)
+        p = run(a.hawser, "design", path, "--json", "--set", "mesh.elements=300", "--set", "model.j2=true")
+        c.check(p.returncode == 0, "design with load cases runs", p.stderr[-300:])
+        if p.returncode == 0:
+            lc = json.loads(p.stdout)["load_cases"]
+            one, heavy_cw, slack = lc["cases"]
+            c.check(one["equilibrium"] and abs(one["base_tension_n"] / t[0] - 1) < 1e-9,
+                    "load case: the base tension of the run's static state", f"{one['base_tension_n']} vs {t[0]}")
+            c.check(abs(one["top_radial_displacement_m"] + drop) < 1e-3,
+                    "load case: the top drop of the run's static state", f"{one['top_radial_displacement_m']} vs {-drop}")
+            dr = np.linalg.norm(x[k]) - np.linalg.norm(built[k])
+            c.check(abs(one["climber_radial_displacement_m"][0] - dr) < 1e-3,
+                    "load case: the climber's radial displacement", f"{one['climber_radial_displacement_m']} vs {dr}")
+            c.check(abs(one["base_tension_margin"] - t[0] / base_bare) < 1e-9,
+                    "load case: margin = base tension / as-built base tension")
+            c.check(heavy_cw["equilibrium"] and heavy_cw["top_radial_displacement_m"] > 0
+                    and heavy_cw["base_tension_n"] > base_bare,
+                    "load case: a heavier counterweight lifts the top and pulls harder on the base")
+            c.check(not slack["equilibrium"] and slack["warning"] and "no equilibrium" in slack["failure"],
+                    "load case: a load the base cannot hold is reported as no equilibrium, with a warning")
+            c.check("warning: load case too heavy low down" in p.stderr, "the warning also goes to stderr")
+            low = [r for r in lc["cases"] if r["equilibrium"] and r["base_tension_margin"] < 0.5]
+            c.check(all(r["warning"] for r in low), "load case: a margin below min_base_margin warns")
+        p = run(a.hawser, "design", path, "--set", "mesh.elements=300")
+        c.check(p.returncode == 0 and "Static load cases" in p.stdout and "no equilibrium" in p.stdout,
+                "design prints the load-case table")
+        # Bad load cases: exit 2, file:line:column and the key path, nothing on stdout.
+        bad = [("  - name: x\n    climbers: [{mass: -2 t, altitude: 10 km}]\n", "mass: -2 t",
+                "load_cases[0].climbers[0].mass"),
+               ("  - name: x\n    climbers: [{mass: 2 t, altitude: 200000 km}]\n", "altitude: 200000 km",
+                "load_cases[0].climbers[0].altitude"),
+               ("  - name: x\n    mean_wind: true\n", "mean_wind: true", "load_cases[0].mean_wind"),
+               ("  - name: x\n    counterweight_change: -1.5\n", "counterweight_change", "load_cases[0].counterweight_change"),
+               ("  - name: x\n    colour: red\n", "colour: red", "load_cases[0].colour")]
+        for extra, needle, key in bad:
+            t_bad = text + "load_cases:\n" + extra
+            path = os.path.join(tmp, "bad.yaml")
+            with open(path, "w") as fh:
+                fh.write(t_bad)
+            line = 1 + t_bad[:t_bad.index(needle)].count("\n")
+            p = run(a.hawser, "check", path)
+            hit = any(f"{path}:{line}:" in l and key in l for l in p.stderr.splitlines())
+            c.check(p.returncode == 2 and hit and not p.stdout.strip(), f"refused: {key}",
+                    f"exit {p.returncode}: {p.stderr.strip()!r}")
     return c.summary()
 
 
