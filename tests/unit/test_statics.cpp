@@ -14,6 +14,7 @@
 #include "models/uniform_gravity.hpp"
 #include "solver/errors.hpp"
 #include "solver/modal_analysis.hpp"
+#include "solver/simulation.hpp"
 #include "solver/static_solver.hpp"
 
 using namespace hawser;
@@ -242,6 +243,32 @@ TEST_CASE("a parked climber pulls the planet tether down with L0 fixed", "[stati
   for (const ForceModel* m : loaded.mean_forces()) m->add_forces(s, f);
   const double t_max = *std::max_element(loaded.equilibrium.tension_n.begin(), loaded.equilibrium.tension_n.end());
   CHECK(f.rightCols(loaded.nodes() - 1).cwiseAbs().maxCoeff() < 1e-8 * t_max);
+}
+
+TEST_CASE("a run started in the loaded static state stays there", "[statics][dynamics]") {
+  // physics.md section 3: a run that starts at the static state must stay there; here the
+  // state of a parked climber (10 t at 20,000 km, leaving after 100 days) and a counterweight
+  // 2 % heavier than the design's, for a simulated day. Acceptance as for the unloaded
+  // tether (test_dynamics_planet.cpp): no node moves by more than 1e-6 of the tether length.
+  const double cw = build_model(load_scenario(kDemo, {"mesh.elements=100", "climbers=[]"})).mesh.counterweight_mass;
+  const Scenario sc = load_scenario(
+      kDemo, {"mesh.elements=100", "simulation.duration=1 d", "simulation.output_interval=1 h",
+              "initial.displacements=[]", "counterweight.mass=" + number(1.02 * cw) + " kg",
+              "climbers=[{name: c10, mass: 10 t, from: 20000 km, to: 21000 km, direction: up, "
+              "cruise_speed: 200 km/h, acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, start_time: 100 d}]"});
+  testing::MemorySink sink;
+  TetherModel model = build_model(sc);
+  TetherSystem sys(model);
+  const RunSummary s = run_simulation(sys, initial_state(sys, sc.initial), run_options(sc.simulation, sys.layout()), sink);
+  REQUIRE(s.status == "complete");
+  REQUIRE(model.equilibrium.newton_iterations > 0);  // it was a loaded state
+  const double length = (model.mesh.position.col(model.nodes() - 1) - model.mesh.position.col(0)).norm();
+  double worst = 0.0;
+  for (const auto& x : sink.x) worst = std::max(worst, (x - model.mesh.position).cwiseAbs().maxCoeff());
+  const double moved = (model.mesh.position - model.mesh.as_built_position).cwiseAbs().maxCoeff();
+  INFO("largest displacement in the run " << worst << " m; the static state is " << moved << " m from the as-built one");
+  CHECK(worst < 1e-6 * length);
+  CHECK(moved > 1e3);  // and the loads did move it (so the check above can fail)
 }
 
 TEST_CASE("a climber at the anchor changes nothing", "[statics]") {
