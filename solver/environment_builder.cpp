@@ -243,7 +243,11 @@ void read_tides(Keys& k, const Scenario& s, EnvironmentSpec& env) {
   };
   body("moon", env.tides.moon);
   body("sun", env.tides.sun);
-  if (!env.tides.moon.on && !env.tides.sun.on) return;
+  env.tides.in_static_state = k.has(p + ".static") && v.boolean(p + ".static");
+  if (!env.tides.moon.on && !env.tides.sun.on) {
+    if (env.tides.in_static_state) k.error(p + ".static", "no tide to load it with: set moon or sun");
+    return;
+  }
   const std::string key = p + (env.tides.moon.on ? ".moon" : ".sun");
   if (s.field.uniform) {
     k.error(key, "tides act on a planet tether only (field.kind is uniform)");

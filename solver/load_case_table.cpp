@@ -56,6 +56,7 @@ std::vector<LoadCaseResult> evaluate_load_cases(const Scenario& sc) {
     }
     loads.counterweight_kg = m.mesh.as_built_counterweight_kg * (1.0 + c.counterweight_change);
     loads.mean_wind = c.mean_wind;
+    loads.tides = c.tides;
     try {
       const LoadedState st = solve_static_loads(m, loads);
       const Matrix3X& x = st.state.position_m;

@@ -84,6 +84,7 @@ struct LoadCaseSpec {
   std::vector<Parked> climbers;
   double counterweight_change = 0.0;  // relative to the design's computed mass [-]
   bool mean_wind = false;
+  bool tides = false;                 // the tides at t = 0
 };
 
 struct Scenario {

@@ -113,6 +113,9 @@ void build_load_cases(const ScenarioValues& v, double length_m, Scenario& s, std
     c.name = v.text(p + ".name");
     c.counterweight_change = v.quantity(p + ".counterweight_change");
     c.mean_wind = v.boolean(p + ".mean_wind");
+    c.tides = v.boolean(p + ".tides");
+    if (c.tides && !s.environment.tides.moon.on && !s.environment.tides.sun.on)
+      problems.push_back({v.where(p + ".tides"), p + ".tides", "no tides in the scenario (environment.tides)"});
     if (c.mean_wind && !wind_at_start)
       problems.push_back({v.where(p + ".mean_wind"), p + ".mean_wind",
                           "no mean wind blows at t = 0 (environment.winds with an atmosphere)"});

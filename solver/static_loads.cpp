@@ -5,6 +5,7 @@
 #include <sstream>
 
 #include "models/aerodynamic_drag.hpp"
+#include "models/tidal_force.hpp"
 #include "solver/tether_model.hpp"
 
 namespace hawser {
@@ -12,7 +13,7 @@ namespace hawser {
 namespace {
 
 std::string describe(const std::vector<Climber>& parked, double cw_kg, double cw_built_kg, bool counterweight,
-                     bool wind) {
+                     bool wind, bool tides) {
   std::ostringstream os;
   const char* sep = "";
   char buf[200];
@@ -28,7 +29,11 @@ std::string describe(const std::vector<Climber>& parked, double cw_kg, double cw
     os << buf;
     sep = ", ";
   }
-  if (wind) os << sep << "the mean wind";
+  if (wind) {
+    os << sep << "the mean wind";
+    sep = ", ";
+  }
+  if (tides) os << sep << "the tides at t = 0";
   return os.str();
 }
 
@@ -63,6 +68,12 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
     set.built_mass_kg[static_cast<Eigen::Index>(top)] = others + m.mesh.as_built_counterweight_kg;
     set.loaded_mass_kg[static_cast<Eigen::Index>(top)] = others + l.counterweight_kg;
   }
+  // The tides at t = 0 (the residual is evaluated at t = 0): on the nodes and the climbers.
+  std::shared_ptr<const ForceModel> tide;
+  if (l.tides)
+    for (const auto& b : m.body)
+      if (std::dynamic_pointer_cast<const TidalForce>(b)) tide = b;
+  if (tide) point_models.push_back(tide);
   std::unique_ptr<ClimberLoad> parked;
   if (!l.parked.empty()) {
     parked = std::make_unique<ClimberLoad>(l.parked, m.equilibrium.s0_m, point_models, m.mesh.as_built_position);
@@ -72,6 +83,7 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
     if (!parked->attachments(0.0).empty()) set.added.push_back(parked.get());
   }
   if (l.mean_wind && m.mean_drag) set.added.push_back(m.mean_drag.get());
+  if (tide) set.added.push_back(tide.get());
   set.first_free = 1;
   set.last_free = m.nodes() - (m.far_end ? 2 : 1);
   set.ground_radius_m = m.reference_radius_m;  // the anchor is on it; 0 on the bench
@@ -79,7 +91,7 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
   LoadedState out;
   out.loaded = !set.added.empty() || set.loaded_mass_kg != set.built_mass_kg;
   set.description = describe(l.parked, l.counterweight_kg, m.mesh.as_built_counterweight_kg, planet,
-                             l.mean_wind && m.mean_drag);
+                             l.mean_wind && m.mean_drag, tide != nullptr);
   out.description = out.loaded ? set.description : "no load";
   if (!out.loaded) {
     out.state.position_m = m.mesh.as_built_position;

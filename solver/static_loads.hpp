@@ -1,7 +1,7 @@
 #pragma once
 // The loads of one static state of the as-built tether (physics.md section 3), gathered for
 // solver/static_solver.hpp: climbers parked at material coordinates, the counterweight hung at
-// the top, the mean wind's drag. Used for the scenario's own starting state (build_model) and
+// the top, the mean wind's drag, the tides at t = 0. Used for the scenario's own starting state (build_model) and
 // for the load cases of `hawser design` (solver/load_case_table.hpp).
 #include <string>
 #include <vector>
@@ -17,6 +17,7 @@ struct StaticLoads {
   std::vector<Climber> parked;   // sitting at profile.from(), a material coordinate s [m]
   double counterweight_kg = 0;   // hung at the top node [kg] (planet tether; ignored on the bench)
   bool mean_wind = false;        // the model's mean_drag (must exist)
+  bool tides = false;            // the model's tidal force at t = 0 (must exist)
 };
 
 struct LoadedState {

@@ -81,6 +81,7 @@ TetherModel build_model(const Scenario& sc) {
   loads.parked = read_climbers(sc, reference, m.equilibrium.s0_m);
   loads.counterweight_kg = m.mesh.counterweight_mass;
   loads.mean_wind = m.mean_drag != nullptr;
+  loads.tides = sc.environment.tides.in_static_state;
   const LoadedState st = solve_static_loads(m, loads);
   if (st.loaded) {
     m.mesh.position = st.state.position_m;

@@ -178,7 +178,9 @@ def main():
                 "load_cases[0].climbers[0].altitude"),
                ("  - name: x\n    mean_wind: true\n", "mean_wind: true", "load_cases[0].mean_wind"),
                ("  - name: x\n    counterweight_change: -1.5\n", "counterweight_change", "load_cases[0].counterweight_change"),
-               ("  - name: x\n    colour: red\n", "colour: red", "load_cases[0].colour")]
+               ("  - name: x\n    colour: red\n", "colour: red", "load_cases[0].colour"),
+               ("  - name: x\n    tides: true\n", "tides: true", "load_cases[0].tides"),
+               ("  - name: x\nenvironment:\n  tides: {static: true}\n", "static: true", "environment.tides.static")]
         for extra, needle, key in bad:
             t_bad = text + "load_cases:\n" + extra
             path = os.path.join(tmp, "bad.yaml")

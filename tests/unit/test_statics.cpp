@@ -299,6 +299,30 @@ TEST_CASE("a counterweight other than the design's is a load on the as-built tet
   CHECK(heavy.equilibrium.load_case.find("counterweight") != std::string::npos);
 }
 
+TEST_CASE("static tides: the starting state carries the Moon's tide at t = 0", "[statics][environment]") {
+  // Asked for by environment.tides.static: the state balances every force of the model at
+  // t = 0, the tide included (statics), and the tide moved it (so that this can fail).
+  const std::vector<std::string> base{"mesh.elements=100", "climbers=[]", "environment.tides.moon=true"};
+  auto with = [&](const std::string& o) {
+    std::vector<std::string> v = base;
+    v.push_back(o);
+    return v;
+  };
+  const TetherModel tided = build_model(load_scenario(kDemo, with("environment.tides.static=true")));
+  const TetherModel plain = build_model(load_scenario(kDemo, with("environment.tides.static=false")));
+  CHECK(tided.equilibrium.load_case.find("tides") != std::string::npos);
+  CHECK(plain.equilibrium.load_case == "no load");
+  Matrix3X f = Matrix3X::Zero(3, tided.nodes());
+  const Matrix3X rest = Matrix3X::Zero(3, tided.nodes());
+  const TetherState s{0.0, tided.mesh.position, rest, tided.mesh.node_mass};
+  for (const ForceModel* m : tided.mean_forces()) m->add_forces(s, f);
+  const double t_max = *std::max_element(tided.equilibrium.tension_n.begin(), tided.equilibrium.tension_n.end());
+  CHECK(f.rightCols(tided.nodes() - 1).cwiseAbs().maxCoeff() < 1e-8 * t_max);
+  const double moved = (tided.mesh.position - plain.mesh.position).cwiseAbs().maxCoeff();
+  INFO("the tide moves the static state by up to " << moved << " m");
+  CHECK(moved > 1.0);
+}
+
 TEST_CASE("the mean wind of the storm leans the ribbon; its modes are damped", "[statics][modes][environment]") {
   const auto t0 = std::chrono::steady_clock::now();
   const TetherModel storm = build_model(load_scenario(kStorm, {}));
