@@ -48,7 +48,8 @@ int cmd_design(const CommonOptions& opt, bool json) {
     std::cout << text;
   }
   for (const LoadCaseResult& c : cases)
-    if (!c.warning.empty()) std::cerr << "warning: load case " << c.name << ": " << c.warning << "\n";
+    if (!c.warning.empty())
+      std::cerr << "warning: load case " << c.name << ": " << c.warning << "\n";
   return 0;
 }
 

@@ -5,13 +5,14 @@
 
 namespace hawser {
 
-void add_differenced_position_jacobian(const ForceModel& model, const TetherState& s, std::size_t first,
-                                       std::size_t last, NodeJacobian& j) {
+void add_differenced_position_jacobian(const ForceModel& model, const TetherState& s,
+                                       std::size_t first, std::size_t last, NodeJacobian& j) {
   const std::size_t nodes = static_cast<std::size_t>(s.x.cols());
   std::vector<double> step(nodes, 0.0);
   for (std::size_t k = first; k <= last; ++k) {
     const auto i = static_cast<Eigen::Index>(k);
-    double chord = k > 0 ? (s.x.col(i) - s.x.col(i - 1)).norm() : (s.x.col(i + 1) - s.x.col(i)).norm();
+    double chord =
+        k > 0 ? (s.x.col(i) - s.x.col(i - 1)).norm() : (s.x.col(i + 1) - s.x.col(i)).norm();
     if (k + 1 < nodes) chord = std::min(chord, (s.x.col(i + 1) - s.x.col(i)).norm());
     step[k] = 1e-5 * chord;
   }
@@ -21,7 +22,8 @@ void add_differenced_position_jacobian(const ForceModel& model, const TetherStat
     for (int a = 0; a < 3; ++a) {
       for (int sign : {1, -1}) {
         xp = s.x;
-        for (std::size_t k = first + colour; k <= last; k += 3) xp(a, static_cast<Eigen::Index>(k)) += sign * step[k];
+        for (std::size_t k = first + colour; k <= last; k += 3)
+          xp(a, static_cast<Eigen::Index>(k)) += sign * step[k];
         Matrix3X& out = sign > 0 ? fp : fm;
         out.setZero();
         model.add_forces(sp, out);
@@ -34,8 +36,8 @@ void add_differenced_position_jacobian(const ForceModel& model, const TetherStat
     }
 }
 
-void add_complete_jacobian(const std::vector<const ForceModel*>& models, const TetherState& s, std::size_t first,
-                           std::size_t last, NodeJacobian& j) {
+void add_complete_jacobian(const std::vector<const ForceModel*>& models, const TetherState& s,
+                           std::size_t first, std::size_t last, NodeJacobian& j) {
   NodeJacobian own(0);
   for (const ForceModel* m : models) {
     if (m->exact_position_jacobian()) {
@@ -45,7 +47,8 @@ void add_complete_jacobian(const std::vector<const ForceModel*>& models, const T
     own.resize(j.nodes());
     m->add_jacobian(s, own);
     for (std::size_t i = 0; i < j.nodes(); ++i)
-      for (std::size_t k = (i > 0 ? i - 1 : i); k <= std::min(j.nodes() - 1, i + 1); ++k) j.dv(i, k) += own.dv(i, k);
+      for (std::size_t k = (i > 0 ? i - 1 : i); k <= std::min(j.nodes() - 1, i + 1); ++k)
+        j.dv(i, k) += own.dv(i, k);
     add_differenced_position_jacobian(*m, s, first, last, j);
   }
 }

@@ -20,13 +20,13 @@ namespace hawser {
 
 /// Adds dF_i/dx_k of `model` at state s (velocities as given) for the nodes k in
 /// [first, last] (the free ones) to j.dx(i, k), i = k-1, k, k+1.
-void add_differenced_position_jacobian(const ForceModel& model, const TetherState& s, std::size_t first,
-                                       std::size_t last, NodeJacobian& j);
+void add_differenced_position_jacobian(const ForceModel& model, const TetherState& s,
+                                       std::size_t first, std::size_t last, NodeJacobian& j);
 
 /// Adds every model's Jacobian to j: add_jacobian() for those with an exact position
 /// Jacobian; for the others their velocity blocks from add_jacobian() and their position
 /// blocks by central differences.
-void add_complete_jacobian(const std::vector<const ForceModel*>& models, const TetherState& s, std::size_t first,
-                           std::size_t last, NodeJacobian& j);
+void add_complete_jacobian(const std::vector<const ForceModel*>& models, const TetherState& s,
+                           std::size_t first, std::size_t last, NodeJacobian& j);
 
 }  // namespace hawser

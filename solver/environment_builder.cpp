@@ -245,7 +245,8 @@ void read_tides(Keys& k, const Scenario& s, EnvironmentSpec& env) {
   body("sun", env.tides.sun);
   env.tides.in_static_state = k.has(p + ".static") && v.boolean(p + ".static");
   if (!env.tides.moon.on && !env.tides.sun.on) {
-    if (env.tides.in_static_state) k.error(p + ".static", "no tide to load it with: set moon or sun");
+    if (env.tides.in_static_state)
+      k.error(p + ".static", "no tide to load it with: set moon or sun");
     return;
   }
   const std::string key = p + (env.tides.moon.on ? ".moon" : ".sun");
@@ -405,11 +406,14 @@ std::shared_ptr<const AerodynamicDrag> mean_wind_drag(const Scenario& sc, const 
   for (const WindSpec& w : env.winds)
     if (w.profile.active(0.0)) winds.push_back(w.profile);
   if (winds.empty()) return nullptr;
-  const AltitudeFrame frame = sc.field.uniform ? AltitudeFrame::bench() : AltitudeFrame::planet(m.reference_radius_m);
+  const AltitudeFrame frame =
+      sc.field.uniform ? AltitudeFrame::bench() : AltitudeFrame::planet(m.reference_radius_m);
   auto wind = std::make_shared<const WindField>(frame, std::move(winds), GustSet(), nullptr, 0.0);
-  const AirDensity air = env.atmosphere == AtmosphereKind::us1976 ? AirDensity::us1976()
-                                                                   : AirDensity::uniform(env.air_density_kg_m3);
-  return std::make_shared<const AerodynamicDrag>(sections(sc, m), env.drag_coefficient, air, wind);
+  const AirDensity air = env.atmosphere == AtmosphereKind::us1976
+                             ? AirDensity::us1976()
+                             : AirDensity::uniform(env.air_density_kg_m3);
+  return std::make_shared<const AerodynamicDrag>(sections(sc, m), env.drag_coefficient, air,
+                                                 wind);
 }
 
 void add_environment(const Scenario& sc, TetherModel& m) {

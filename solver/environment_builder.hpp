@@ -37,7 +37,8 @@ EnvironmentSpec read_environment(const ScenarioValues& v, const Scenario& s, dou
 
 /// The drag of the mean wind alone (the wind profiles blowing at t = 0; no gusts, no
 /// turbulence), the wind load of the static state; null when no wind blows at t = 0.
-std::shared_ptr<const AerodynamicDrag> mean_wind_drag(const Scenario& scenario, const TetherModel& model);
+std::shared_ptr<const AerodynamicDrag> mean_wind_drag(const Scenario& scenario,
+                                                      const TetherModel& model);
 
 /// Adds drag (when there is air), tides, cuts and strikes of `scenario.environment` to `model`
 /// (whose mesh and bars are built); read_environment() has validated everything it uses.

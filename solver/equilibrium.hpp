@@ -18,7 +18,8 @@ namespace hawser {
 
 struct Equilibrium {
   std::vector<double> tension_n;  // (N) [N] in the static state runs start from (Mesh::position)
-  std::vector<double> as_built_tension_n;  // (N) [N] of the unloaded design (Mesh::as_built_position)
+  std::vector<double> as_built_tension_n;  // (N) [N] of the unloaded design
+                                           // (Mesh::as_built_position)
   std::vector<double> l0_m;       // (N) unstretched lengths [m]: the as-built tether
   std::vector<double> s0_m;       // (N+1) unstretched arc length from node 0 [m]
   // The static state (solver/static_solver.hpp): what loads it, and what solving it took.
@@ -30,8 +31,8 @@ struct Equilibrium {
   int relax_iterations = 0;       // pseudo-transient steps from there to the state
 };
 
-/// The as-built tether: tension_n = as_built_tension_n. `body` are the force models other than the bars, evaluated at rest on the reference
-/// geometry. Throws InputError if some element would have to push (no tension equilibrium).
+/// The as-built tether: tension_n = as_built_tension_n. `body` are the force models other
+/// than the bars, evaluated at rest on the reference geometry. Throws InputError if some element would have to push (no tension equilibrium).
 Equilibrium solve_equilibrium(const Mesh& mesh, double youngs_modulus_pa, double pretension_n,
                               const std::vector<const ForceModel*>& body);
 

@@ -16,7 +16,8 @@ namespace hawser {
 namespace {
 
 /// Material coordinate s [m] of an altitude on the as-built tether (linear on each element).
-double material_coordinate(const std::vector<double>& reference_m, const std::vector<double>& s0_m, double h_m) {
+double material_coordinate(const std::vector<double>& reference_m, const std::vector<double>& s0_m,
+                           double h_m) {
   const auto it = std::upper_bound(reference_m.begin(), reference_m.end(), h_m);
   std::size_t e = static_cast<std::size_t>(std::max<long>(0, (it - reference_m.begin()) - 1));
   e = std::min(e, reference_m.size() - 2);
@@ -51,8 +52,8 @@ std::vector<LoadCaseResult> evaluate_load_cases(const Scenario& sc) {
     std::vector<double> s_climber;
     for (std::size_t j = 0; j < c.climbers.size(); ++j) {
       s_climber.push_back(material_coordinate(reference, s0, c.climbers[j].altitude_m));
-      loads.parked.push_back(parked_climber(c.name + " #" + std::to_string(j + 1), c.climbers[j].mass_kg,
-                                            s_climber.back()));
+      loads.parked.push_back(parked_climber(c.name + " #" + std::to_string(j + 1),
+                                            c.climbers[j].mass_kg, s_climber.back()));
     }
     loads.counterweight_kg = m.mesh.as_built_counterweight_kg * (1.0 + c.counterweight_change);
     loads.mean_wind = c.mean_wind;
@@ -65,18 +66,22 @@ std::vector<LoadCaseResult> evaluate_load_cases(const Scenario& sc) {
       const auto n = static_cast<Eigen::Index>(top);
       r.top_radial_m = x.col(n).norm() - m.mesh.as_built_position.col(n).norm();
       r.top_east_m = x(1, n) - m.mesh.as_built_position(1, n);
-      for (double s : s_climber) r.climber_radial_m.push_back(radius_at(x, s0, s) - radius_at(m.mesh.as_built_position, s0, s));
+      for (double s : s_climber)
+        r.climber_radial_m.push_back(radius_at(x, s0, s) -
+                                     radius_at(m.mesh.as_built_position, s0, s));
       r.base_tension_n = st.state.tension_n.front();
       r.base_margin = r.base_tension_n / t0_built;
       r.min_safety_factor = std::numeric_limits<double>::infinity();
       for (std::size_t e = 0; e < m.elements(); ++e)
-        r.min_safety_factor = std::min(r.min_safety_factor, m.ultimate_strength_pa * m.mesh.element_area[e] /
-                                                                 st.state.tension_n[e]);
+        r.min_safety_factor =
+            std::min(r.min_safety_factor,
+                     m.ultimate_strength_pa * m.mesh.element_area[e] / st.state.tension_n[e]);
       r.newton_iterations = st.state.newton_iterations;
       r.load_steps = st.state.load_steps;
       if (r.base_margin < sc.min_base_margin) {
         char buf[160];
-        std::snprintf(buf, sizeof buf, "base-tension margin %.3g below %.3g (load_case_checks.min_base_margin)",
+        std::snprintf(buf, sizeof buf,
+                      "base-tension margin %.3g below %.3g (load_case_checks.min_base_margin)",
                       r.base_margin, sc.min_base_margin);
         r.warning = buf;
       }
@@ -95,10 +100,12 @@ std::string load_case_table(const Scenario& sc, const std::vector<LoadCaseResult
   std::ostringstream os;
   if (cases.empty()) return "";
   char buf[400];
-  os << "\n  Static load cases on the as-built tether (unstretched lengths fixed; base-tension margin =\n"
+  os << "\n  Static load cases on the as-built tether (unstretched lengths fixed; base-tension "
+        "margin =\n"
         "  base tension / as-built base tension; warn below "
      << sc.min_base_margin << ")\n";
-  os << "  case                            top radial [km]  top east [km]  climber radial [km]  base tension [kN]"
+  os << "  case                            top radial [km]  top east [km]  climber radial [km]  "
+        "base tension [kN]"
         "  margin  smallest SF\n";
   for (const LoadCaseResult& r : cases) {
     if (!r.equilibrium) {
@@ -112,9 +119,9 @@ std::string load_case_table(const Scenario& sc, const std::vector<LoadCaseResult
         climbers += c;
       }
       if (climbers.empty()) climbers = "-";
-      std::snprintf(buf, sizeof buf, "  %-30.30s %15.6g %14.6g %20s %18.6g %7.3f %12.4f\n", r.name.c_str(),
-                    r.top_radial_m / 1e3, r.top_east_m / 1e3, climbers.c_str(), r.base_tension_n / 1e3, r.base_margin,
-                    r.min_safety_factor);
+      std::snprintf(buf, sizeof buf, "  %-30.30s %15.6g %14.6g %20s %18.6g %7.3f %12.4f\n",
+                    r.name.c_str(), r.top_radial_m / 1e3, r.top_east_m / 1e3, climbers.c_str(),
+                    r.base_tension_n / 1e3, r.base_margin, r.min_safety_factor);
       os << buf;
     }
   }

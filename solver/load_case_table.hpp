@@ -9,10 +9,9 @@
 //  - the smallest safety factor over the elements, ultimate strength x A_e / T_e [-].
 // A case warns when there is no equilibrium (the base going slack, a load the tether cannot
 // hold) or when its margin is below load_case_checks.min_base_margin.
+#include <nlohmann/json.hpp>
 #include <string>
 #include <vector>
-
-#include <nlohmann/json.hpp>
 
 namespace hawser {
 
@@ -20,14 +19,14 @@ struct Scenario;
 
 struct LoadCaseResult {
   std::string name;
-  std::string loads;               // what was hung, as the static solver describes it
+  std::string loads;  // what was hung, as the static solver describes it
   bool equilibrium = false;
-  std::string failure;             // why not, when there is no equilibrium
+  std::string failure;  // why not, when there is no equilibrium
   double top_radial_m = 0.0, top_east_m = 0.0;
   std::vector<double> climber_radial_m;  // per parked climber
   double base_tension_n = 0.0, base_margin = 0.0, min_safety_factor = 0.0;
   int newton_iterations = 0, load_steps = 0;
-  std::string warning;             // empty: none
+  std::string warning;  // empty: none
 };
 
 /// Solves every load case of the scenario (none: empty).

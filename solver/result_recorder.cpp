@@ -44,8 +44,10 @@ ResultRecorder::ResultRecorder(const std::string& path, const Scenario& sc, cons
   file_.set_attribute("/equilibrium", "fold_load_factor", model.equilibrium.fold_load_factor);
   file_.set_attribute("/equilibrium", "relax_iterations", model.equilibrium.relax_iterations);
   file_.write_array("/mesh/as_built_position", {nn, 3}, model.mesh.as_built_position.data(), "m");
-  file_.write_array("/mesh/as_built_tension", {n}, model.equilibrium.as_built_tension_n.data(), "N");
-  file_.set_attribute("/mesh", "as_built_counterweight_mass_kg", model.mesh.as_built_counterweight_kg);
+  file_.write_array("/mesh/as_built_tension", {n}, model.equilibrium.as_built_tension_n.data(),
+                    "N");
+  file_.set_attribute("/mesh", "as_built_counterweight_mass_kg",
+                      model.mesh.as_built_counterweight_kg);
   std::vector<long long> idx(nodes_.begin(), nodes_.end());
   file_.write_array("/nodes/index", {k}, idx.data(), "1");
 

@@ -102,11 +102,13 @@ void build_initial_and_output(const ScenarioValues& v, double length_m, int elem
 }
 
 /// load_cases[] and load_case_checks (planet tether; `length_m` is the tether's).
-void build_load_cases(const ScenarioValues& v, double length_m, Scenario& s, std::vector<Problem>& problems) {
+void build_load_cases(const ScenarioValues& v, double length_m, Scenario& s,
+                      std::vector<Problem>& problems) {
   s.min_base_margin = v.quantity("load_case_checks.min_base_margin");
   const long long n = v.has("load_cases") ? v.integer("load_cases") : 0;
   bool wind_at_start = false;
-  for (const WindSpec& w : s.environment.winds) wind_at_start = wind_at_start || w.profile.active(0.0);
+  for (const WindSpec& w : s.environment.winds)
+    wind_at_start = wind_at_start || w.profile.active(0.0);
   for (long long i = 0; i < n; ++i) {
     const std::string p = "load_cases[" + std::to_string(i) + "]";
     LoadCaseSpec c;
@@ -115,7 +117,8 @@ void build_load_cases(const ScenarioValues& v, double length_m, Scenario& s, std
     c.mean_wind = v.boolean(p + ".mean_wind");
     c.tides = v.boolean(p + ".tides");
     if (c.tides && !s.environment.tides.moon.on && !s.environment.tides.sun.on)
-      problems.push_back({v.where(p + ".tides"), p + ".tides", "no tides in the scenario (environment.tides)"});
+      problems.push_back(
+          {v.where(p + ".tides"), p + ".tides", "no tides in the scenario (environment.tides)"});
     if (c.mean_wind && !wind_at_start)
       problems.push_back({v.where(p + ".mean_wind"), p + ".mean_wind",
                           "no mean wind blows at t = 0 (environment.winds with an atmosphere)"});
@@ -125,7 +128,8 @@ void build_load_cases(const ScenarioValues& v, double length_m, Scenario& s, std
       LoadCaseSpec::Parked pk{v.quantity(q + ".mass"), v.quantity(q + ".altitude")};
       if (pk.altitude_m > length_m)
         problems.push_back({v.where(q + ".altitude"), q + ".altitude",
-                            "beyond the top of the tether (" + std::to_string(length_m / 1e3) + " km)"});
+                            "beyond the top of the tether (" +
+                                std::to_string(length_m / 1e3) + " km)"});
       c.climbers.push_back(pk);
     }
     s.load_cases.push_back(c);
@@ -160,7 +164,8 @@ Scenario build(const ReadScenario& read, const std::string& file) {
                           "geometric grading must grow toward the far end: N times the first length exceeds the cable length"});
     build_initial_and_output(v, s.field.cable_length_m, s.mesh.elements, s.field.far_end_fixed, s, problems);
     if (v.has("load_cases") && v.integer("load_cases") > 0)
-      problems.push_back({v.where("load_cases"), "load_cases", "static load cases are for a planet tether only"});
+      problems.push_back({v.where("load_cases"), "load_cases",
+                          "static load cases are for a planet tether only"});
     if (!problems.empty()) throw InputError(format_problems(problems));
     return s;
   }

@@ -12,20 +12,21 @@ namespace hawser {
 
 namespace {
 
-std::string describe(const std::vector<Climber>& parked, double cw_kg, double cw_built_kg, bool counterweight,
-                     bool wind, bool tides) {
+std::string describe(const std::vector<Climber>& parked, double cw_kg, double cw_built_kg,
+                     bool counterweight, bool wind, bool tides) {
   std::ostringstream os;
   const char* sep = "";
   char buf[200];
   for (const Climber& c : parked) {
     if (c.sudden) continue;
-    std::snprintf(buf, sizeof buf, "%sclimber '%s' (%.6g kg) parked at s = %.6g km", sep, c.name.c_str(), c.mass_kg,
-                  c.profile.from() / 1e3);
+    std::snprintf(buf, sizeof buf, "%sclimber '%s' (%.6g kg) parked at s = %.6g km", sep,
+                  c.name.c_str(), c.mass_kg, c.profile.from() / 1e3);
     os << buf;
     sep = ", ";
   }
   if (counterweight && cw_kg != cw_built_kg) {
-    std::snprintf(buf, sizeof buf, "%scounterweight %.6g t (the design's %.6g t)", sep, cw_kg / 1e3, cw_built_kg / 1e3);
+    std::snprintf(buf, sizeof buf, "%scounterweight %.6g t (the design's %.6g t)", sep, cw_kg / 1e3,
+                  cw_built_kg / 1e3);
     os << buf;
     sep = ", ";
   }
@@ -64,7 +65,8 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
   set.built_mass_kg = m.mesh.node_mass;
   set.loaded_mass_kg = m.mesh.node_mass;
   if (planet) {
-    const double others = m.mesh.node_mass[static_cast<Eigen::Index>(top)] - m.mesh.counterweight_mass;
+    const double others =
+        m.mesh.node_mass[static_cast<Eigen::Index>(top)] - m.mesh.counterweight_mass;
     set.built_mass_kg[static_cast<Eigen::Index>(top)] = others + m.mesh.as_built_counterweight_kg;
     set.loaded_mass_kg[static_cast<Eigen::Index>(top)] = others + l.counterweight_kg;
   }
@@ -76,10 +78,12 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
   if (tide) point_models.push_back(tide);
   std::unique_ptr<ClimberLoad> parked;
   if (!l.parked.empty()) {
-    parked = std::make_unique<ClimberLoad>(l.parked, m.equilibrium.s0_m, point_models, m.mesh.as_built_position);
+    parked = std::make_unique<ClimberLoad>(l.parked, m.equilibrium.s0_m, point_models,
+                                           m.mesh.as_built_position);
     parked->set_parked(true);
     if (l.mean_wind)
-      if (auto air = std::dynamic_pointer_cast<const AerodynamicDrag>(m.mean_drag)) parked->set_air(air);
+      if (auto air = std::dynamic_pointer_cast<const AerodynamicDrag>(m.mean_drag))
+        parked->set_air(air);
     if (!parked->attachments(0.0).empty()) set.added.push_back(parked.get());
   }
   if (l.mean_wind && m.mean_drag) set.added.push_back(m.mean_drag.get());
@@ -107,9 +111,10 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
   }
   if (out.state.fold_load_factor < 1.0) {
     char note[160];
-    std::snprintf(note, sizeof note,
-                  " (continuation stopped at %.4g %% of the load; reached by pseudo-transient relaxation)",
-                  100.0 * out.state.fold_load_factor);
+    std::snprintf(
+        note, sizeof note,
+        " (continuation stopped at %.4g %% of the load; reached by pseudo-transient relaxation)",
+        100.0 * out.state.fold_load_factor);
     out.description += note;
   }
   return out;

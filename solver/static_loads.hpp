@@ -1,8 +1,8 @@
 #pragma once
 // The loads of one static state of the as-built tether (physics.md section 3), gathered for
 // solver/static_solver.hpp: climbers parked at material coordinates, the counterweight hung at
-// the top, the mean wind's drag, the tides at t = 0. Used for the scenario's own starting state (build_model) and
-// for the load cases of `hawser design` (solver/load_case_table.hpp).
+// the top, the mean wind's drag, the tides at t = 0. Used for the scenario's own starting state
+// (build_model) and for the load cases of `hawser design` (solver/load_case_table.hpp).
 #include <string>
 #include <vector>
 
@@ -14,16 +14,16 @@ namespace hawser {
 struct TetherModel;
 
 struct StaticLoads {
-  std::vector<Climber> parked;   // sitting at profile.from(), a material coordinate s [m]
-  double counterweight_kg = 0;   // hung at the top node [kg] (planet tether; ignored on the bench)
-  bool mean_wind = false;        // the model's mean_drag (must exist)
-  bool tides = false;            // the model's tidal force at t = 0 (must exist)
+  std::vector<Climber> parked;  // sitting at profile.from(), a material coordinate s [m]
+  double counterweight_kg = 0;  // hung at the top node [kg] (planet tether; ignored on the bench)
+  bool mean_wind = false;       // the model's mean_drag (must exist)
+  bool tides = false;           // the model's tidal force at t = 0 (must exist)
 };
 
 struct LoadedState {
   StaticState state;
-  std::string description;       // the loads, for messages and the result file
-  bool loaded = false;           // false: nothing to hang; state is the as-built one
+  std::string description;  // the loads, for messages and the result file
+  bool loaded = false;      // false: nothing to hang; state is the as-built one
 };
 
 /// A climber of `mass_kg` parked for ever at material coordinate `s_m`.

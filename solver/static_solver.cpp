@@ -29,7 +29,9 @@ class StaticResidual {
         jc_(nodes_),
         ja_(nodes_) {}
 
-  Eigen::Index unknowns() const { return static_cast<Eigen::Index>(3 * (l_.last_free - l_.first_free + 1)); }
+  Eigen::Index unknowns() const {
+    return static_cast<Eigen::Index>(3 * (l_.last_free - l_.first_free + 1));
+  }
 
   void set_load(double lambda) {
     lambda_ = lambda;
@@ -47,7 +49,8 @@ class StaticResidual {
     }
     Eigen::VectorXd r(unknowns());
     for (std::size_t k = l_.first_free; k <= l_.last_free; ++k)
-      r.segment<3>(static_cast<Eigen::Index>(3 * (k - l_.first_free))) = f_.col(static_cast<Eigen::Index>(k));
+      r.segment<3>(static_cast<Eigen::Index>(3 * (k - l_.first_free))) =
+          f_.col(static_cast<Eigen::Index>(k));
     return r;
   }
 
@@ -77,14 +80,15 @@ class StaticResidual {
   double largest_tension(const Matrix3X& x, std::size_t* slack) {
     const TetherState s{0.0, x, rest_, mass_};
     l_.bars->tensions(s, tension_);
-    if (slack) *slack = static_cast<std::size_t>(std::find(tension_.begin(), tension_.end(), 0.0) - tension_.begin());
+    if (slack)
+      *slack = static_cast<std::size_t>(std::find(tension_.begin(), tension_.end(), 0.0) -
+                                        tension_.begin());
     return *std::max_element(tension_.begin(), tension_.end());
   }
   const std::vector<double>& tensions() const { return tension_; }
   const Eigen::VectorXd& mass() const { return mass_; }
 
  private:
-
  private:
   const StaticLoadSet& l_;
   std::size_t nodes_;
@@ -108,13 +112,14 @@ std::size_t below_ground(const StaticLoadSet& l, const Matrix3X& x) {
 
 void apply(const StaticLoadSet& l, const Eigen::VectorXd& dx, double alpha, Matrix3X& x) {
   for (std::size_t k = l.first_free; k <= l.last_free; ++k)
-    x.col(static_cast<Eigen::Index>(k)) += alpha * dx.segment<3>(static_cast<Eigen::Index>(3 * (k - l.first_free)));
+    x.col(static_cast<Eigen::Index>(k)) +=
+        alpha * dx.segment<3>(static_cast<Eigen::Index>(3 * (k - l.first_free)));
 }
 
 /// Newton's method with backtracking at a fixed load factor; x is updated in place.
 /// Returns an empty string on success, else why it failed.
-std::string newton(StaticResidual& res, const StaticLoadSet& l, const StaticOptions& o, double length_m,
-                   Matrix3X& x, int& iterations, double& residual_n) {
+std::string newton(StaticResidual& res, const StaticLoadSet& l, const StaticOptions& o,
+                   double length_m, Matrix3X& x, int& iterations, double& residual_n) {
   Eigen::SparseLU<SpMat> lu;
   bool analysed = false;
   Eigen::VectorXd r = res.residual(x);
@@ -182,7 +187,8 @@ std::string newton(StaticResidual& res, const StaticLoadSet& l, const StaticOpti
       if (slack == res.tensions().size()) return "";
     }
   }
-  return "Newton's method did not converge in " + std::to_string(o.max_newton_iterations) + " iterations";
+  return "Newton's method did not converge in " + std::to_string(o.max_newton_iterations) +
+         " iterations";
 }
 
 /// Pseudo-transient continuation at the full load (Kelley & Keyes, "Convergence analysis of
@@ -197,15 +203,16 @@ std::string newton(StaticResidual& res, const StaticLoadSet& l, const StaticOpti
 /// the plain rule h stayed near 10 s on scenarios/storm.yaml and the top never moved) and,
 /// once large, leaves Newton's method itself. A step that makes the residual grow tenfold is
 /// retaken with h / 4.
-std::string relax(StaticResidual& res, const StaticLoadSet& l, const StaticOptions& o, double length_m, Matrix3X& x,
-                  int& iterations, double& residual_n) {
+std::string relax(StaticResidual& res, const StaticLoadSet& l, const StaticOptions& o,
+                  double length_m, Matrix3X& x, int& iterations, double& residual_n) {
   Eigen::SparseLU<SpMat> lu;
   bool analysed = false;
   Eigen::VectorXd r = res.residual(x);
   double h = o.relax_first_step_s;
   Eigen::VectorXd m3(r.size());
   for (std::size_t k = l.first_free; k <= l.last_free; ++k)
-    m3.segment<3>(static_cast<Eigen::Index>(3 * (k - l.first_free))).setConstant(res.mass()[static_cast<Eigen::Index>(k)]);
+    m3.segment<3>(static_cast<Eigen::Index>(3 * (k - l.first_free)))
+        .setConstant(res.mass()[static_cast<Eigen::Index>(k)]);
   for (int it = 0; it < o.max_relax_iterations; ++it) {
     std::size_t slack = 0;
     const double t_max = res.largest_tension(x, &slack);
@@ -219,7 +226,8 @@ std::string relax(StaticResidual& res, const StaticLoadSet& l, const StaticOptio
     }
     lu.factorize(a);
     ++iterations;
-    const Eigen::VectorXd dx = lu.info() == Eigen::Success ? Eigen::VectorXd(lu.solve(-r)) : Eigen::VectorXd();
+    const Eigen::VectorXd dx =
+        lu.info() == Eigen::Success ? Eigen::VectorXd(lu.solve(-r)) : Eigen::VectorXd();
     Matrix3X trial = x;
     Eigen::VectorXd rt;
     if (dx.size() && dx.allFinite()) {
@@ -235,18 +243,21 @@ std::string relax(StaticResidual& res, const StaticLoadSet& l, const StaticOptio
     r = rt;
     if (const std::size_t k = below_ground(l, x))
       return "node " + std::to_string(k) + " went below the ground (the tether falls)";
-    if (h > o.relax_newton_step_s && dx.lpNorm<Eigen::Infinity>() <= o.position_tolerance * length_m) {
+    if (h > o.relax_newton_step_s &&
+        dx.lpNorm<Eigen::Infinity>() <= o.position_tolerance * length_m) {
       res.largest_tension(x, &slack);
       residual_n = r.lpNorm<Eigen::Infinity>();
       if (slack == res.tensions().size()) return "";
     }
   }
-  return "no state at rest after " + std::to_string(o.max_relax_iterations) + " steps of pseudo-transient relaxation";
+  return "no state at rest after " + std::to_string(o.max_relax_iterations) +
+         " steps of pseudo-transient relaxation";
 }
 
 }  // namespace
 
-StaticState solve_static(const StaticLoadSet& l, const Matrix3X& as_built_m, const StaticOptions& o) {
+StaticState solve_static(const StaticLoadSet& l, const Matrix3X& as_built_m,
+                         const StaticOptions& o) {
   StaticResidual res(l);
   const Eigen::Index last = static_cast<Eigen::Index>(as_built_m.cols()) - 1;
   const double length_m = (as_built_m.col(last) - as_built_m.col(0)).norm();
@@ -258,12 +269,14 @@ StaticState solve_static(const StaticLoadSet& l, const Matrix3X& as_built_m, con
     const double target = std::min(1.0, lambda + step);
     // Secant predictor from the last two converged states (none on the first step).
     Matrix3X trial = x;
-    if (lambda > lambda_previous) trial += (target - lambda) / (lambda - lambda_previous) * (x - previous);
+    if (lambda > lambda_previous)
+      trial += (target - lambda) / (lambda - lambda_previous) * (x - previous);
     res.set_load(target);
     double residual_n = 0.0;
     why = newton(res, l, o, length_m, trial, out.newton_iterations, residual_n);
     if (why.empty())
-      if (const std::size_t k = below_ground(l, trial)) why = "node " + std::to_string(k) + " went below the ground";
+      if (const std::size_t k = below_ground(l, trial))
+        why = "node " + std::to_string(k) + " went below the ground";
     if (why.empty()) {
       previous = x;
       lambda_previous = lambda;
@@ -283,7 +296,8 @@ StaticState solve_static(const StaticLoadSet& l, const Matrix3X& as_built_m, con
       res.set_load(1.0);
       double residual_n = 0.0;
       Matrix3X relaxed = x;
-      const std::string why_relax = relax(res, l, o, length_m, relaxed, out.relax_iterations, residual_n);
+      const std::string why_relax =
+          relax(res, l, o, length_m, relaxed, out.relax_iterations, residual_n);
       if (why_relax.empty()) {
         x = relaxed;
         out.residual_n = residual_n;

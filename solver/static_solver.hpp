@@ -6,12 +6,13 @@
 // Method: Newton's method on the full 3-D equilibrium with the analytic tangent dR/dx that the
 // force models already provide (their NodeJacobian dx blocks, the same K the modal analysis
 // assembles, with the opposite sign; differenced for models whose analytic dF/dx is
-// incomplete, the drag: solver/differenced_jacobian.hpp). It couples neighbours only, so it is block-tridiagonal;
-// it is factorised as a sparse matrix (Eigen SparseLU, fill-in O(N), never dense), since
-// drag makes it unsymmetric. Each Newton step is damped (halved until accepted) by the natural
-// monotonicity test (Deuflhard, Newton Methods for Nonlinear Problems, 2004, section 3.3):
-// the simplified Newton correction at the trial point must shrink. A test on |R| instead
-// (Armijo's) stalled on nearly inextensible cables, where |R| is ruled by the stiff stretch.
+// incomplete, the drag: solver/differenced_jacobian.hpp). It couples neighbours only, so it is
+// block-tridiagonal; it is factorised as a sparse matrix (Eigen SparseLU, fill-in O(N), never
+// dense), since drag makes it unsymmetric. Each Newton step is damped (halved until accepted) by
+// the natural monotonicity test (Deuflhard, Newton Methods for Nonlinear Problems, 2004,
+// section 3.3): the simplified Newton correction at the trial point must shrink. A test on |R|
+// instead (Armijo's) stalled on nearly inextensible cables, where |R| is ruled by the stiff
+// stretch.
 //
 // Continuation in load (a natural-parameter homotopy, Allgower & Georg, Numerical
 // Continuation Methods, 1990): with the load factor lambda in [0, 1],
@@ -49,12 +50,12 @@ namespace hawser {
 class BarElements;
 
 struct StaticLoadSet {
-  std::string description;                 // what is hung on the tether, for messages
-  const BarElements* bars = nullptr;       // for tensions and the slack check
-  std::vector<const ForceModel*> common;   // bars, gravity, frame: in every state
-  std::vector<const ForceModel*> added;    // climbers, mean drag: scaled by the load factor
-  Eigen::VectorXd built_mass_kg;           // (N+1) node masses of the as-built tether [kg]
-  Eigen::VectorXd loaded_mass_kg;          // (N+1) node masses under load [kg]
+  std::string description;                    // what is hung on the tether, for messages
+  const BarElements* bars = nullptr;          // for tensions and the slack check
+  std::vector<const ForceModel*> common;      // bars, gravity, frame: in every state
+  std::vector<const ForceModel*> added;       // climbers, mean drag: scaled by the load factor
+  Eigen::VectorXd built_mass_kg;              // (N+1) node masses of the as-built tether [kg]
+  Eigen::VectorXd loaded_mass_kg;             // (N+1) node masses under load [kg]
   std::size_t first_free = 1, last_free = 0;  // nodes that move; the others are held
   /// Free nodes may not come closer to the centre than this [m]: the ground, whose contact is
   /// not modelled (0: no ground, the test bench). A state below it is no equilibrium: a
@@ -63,26 +64,26 @@ struct StaticLoadSet {
 };
 
 struct StaticOptions {
-  double force_tolerance = 1e-11;      // of the largest tension [-]
-  double position_tolerance = 1e-12;   // of the tether length [-]
-  int max_newton_iterations = 15;      // per load step (a failed step is halved)
-  double min_damping = 1.0;            // smallest damping factor before the load step fails
+  double force_tolerance = 1e-11;     // of the largest tension [-]
+  double position_tolerance = 1e-12;  // of the tether length [-]
+  int max_newton_iterations = 15;     // per load step (a failed step is halved)
+  double min_damping = 1.0;           // smallest damping factor before the load step fails
   double min_load_step = 1.0 / 4096;
   int max_load_steps = 2000;
-  double relax_first_step_s = 10.0;    // first pseudo time step [s]
-  double relax_newton_step_s = 1e8;    // pseudo time step beyond which a step is Newton's [s]
+  double relax_first_step_s = 10.0;  // first pseudo time step [s]
+  double relax_newton_step_s = 1e8;  // pseudo time step beyond which a step is Newton's [s]
   int max_relax_iterations = 400;
 };
 
 struct StaticState {
-  Matrix3X position_m;                 // (3, N+1)
-  std::vector<double> tension_n;       // (N) [N]
-  int newton_iterations = 0;           // over all load steps
-  int load_steps = 0;                  // successful steps of the continuation
-  int failed_steps = 0;                // steps halved
-  double fold_load_factor = 1.0;       // where the continuation's branch ended (1: it did not)
-  int relax_iterations = 0;            // steps of pseudo-transient relaxation past it
-  double residual_n = 0.0;             // final |R|_inf [N]
+  Matrix3X position_m;            // (3, N+1)
+  std::vector<double> tension_n;  // (N) [N]
+  int newton_iterations = 0;      // over all load steps
+  int load_steps = 0;             // successful steps of the continuation
+  int failed_steps = 0;           // steps halved
+  double fold_load_factor = 1.0;  // where the continuation's branch ended (1: it did not)
+  int relax_iterations = 0;       // steps of pseudo-transient relaxation past it
+  double residual_n = 0.0;        // final |R|_inf [N]
 };
 
 /// Solves R(x, 1) = 0 from `as_built_m` (the solution of R(x, 0) = 0).

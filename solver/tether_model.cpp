@@ -43,7 +43,8 @@ TetherModel build_as_built(const Scenario& sc) {
     const EquatorialField field(sc.planet, sc.j2);
     const TetherDesign design(field, sc.material, sc.tether, CounterweightSpec{});
     m.mesh = build_planet_mesh(design, sc.mesh);
-    counterweight_kg = sc.counterweight.mass_kg ? *sc.counterweight.mass_kg : design.counterweight_mass();
+    counterweight_kg =
+        sc.counterweight.mass_kg ? *sc.counterweight.mass_kg : design.counterweight_mass();
     m.body.push_back(std::make_unique<PlanetGravity>(sc.planet, sc.j2));
     m.body.push_back(std::make_unique<RotatingFrame>(sc.planet.spin_rate_rad_s));
     m.spin_rate_rad_s = sc.planet.spin_rate_rad_s;
@@ -54,7 +55,8 @@ TetherModel build_as_built(const Scenario& sc) {
   std::vector<const ForceModel*> body;
   for (const auto& b : m.body) body.push_back(b.get());
   // The exact discrete equilibrium of the unloaded design: its L0 are the as-built tether.
-  m.equilibrium = solve_equilibrium(m.mesh, sc.material.youngs_modulus_pa, sc.field.pretension_n, body);
+  m.equilibrium =
+      solve_equilibrium(m.mesh, sc.material.youngs_modulus_pa, sc.field.pretension_n, body);
   std::vector<double> ea, tau;
   for (std::size_t e = 0; e < m.mesh.elements(); ++e) {
     ea.push_back(sc.material.youngs_modulus_pa * m.mesh.element_area[e]);

@@ -36,7 +36,8 @@ Timed best_build(const std::string& file, const std::vector<std::string>& set, i
   for (int i = 0; i < repeat; ++i) {
     const auto t0 = std::chrono::steady_clock::now();
     const TetherModel m = build_model(sc);
-    t.wall_s = std::min(t.wall_s, std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count());
+    t.wall_s = std::min(
+        t.wall_s, std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count());
     t.iterations = m.equilibrium.newton_iterations;
     t.steps = m.equilibrium.load_steps;
     t.relax = m.equilibrium.relax_iterations;
@@ -60,7 +61,8 @@ int main(int argc, char** argv) {
   const std::string dir = scenarios_dir();
   const std::string mesh = "mesh.elements=" + std::to_string(n);
   const std::string climber =
-      "climbers=[{name: c10, mass: 10 t, from: 20000 km, to: 21000 km, direction: up, cruise_speed: 200 km/h, "
+      "climbers=[{name: c10, mass: 10 t, from: 20000 km, to: 21000 km, direction: up, "
+      "cruise_speed: 200 km/h, "
       "acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, start_time: 100 d}]";
   struct Case {
     const char* name;
@@ -73,11 +75,13 @@ int main(int argc, char** argv) {
   };
   std::printf("N = %d elements, best of %d\n", n, repeat);
   for (const Case& c : cases) {
-    const Timed loaded = best_build(c.file, c.loaded, repeat), bare = best_build(c.file, c.bare, repeat);
-    std::printf("  %-8s static solve %8.4f s (build %.4f s with it, %.4f s without); %d Newton iterations, "
-                "%d load steps, fold at %.4g of the load, %d relaxation steps\n",
-                c.name, loaded.wall_s - bare.wall_s, loaded.wall_s, bare.wall_s, loaded.iterations, loaded.steps,
-                loaded.fold, loaded.relax);
+    const Timed loaded = best_build(c.file, c.loaded, repeat),
+                bare = best_build(c.file, c.bare, repeat);
+    std::printf(
+        "  %-8s static solve %8.4f s (build %.4f s with it, %.4f s without); %d Newton iterations, "
+        "%d load steps, fold at %.4g of the load, %d relaxation steps\n",
+        c.name, loaded.wall_s - bare.wall_s, loaded.wall_s, bare.wall_s, loaded.iterations,
+        loaded.steps, loaded.fold, loaded.relax);
   }
   return 0;
 }

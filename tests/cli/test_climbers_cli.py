@@ -145,7 +145,8 @@ def main():
             ("cruise speed never reached",
              mutate(mutate(BASE, "cruise_speed: 200 km/h", "cruise_speed: 2000 km/h"),
                     "acceleration: 0.5 m/s^2", "acceleration: 0.01 m/s^2"),
-             line_of(BASE, "name: wren"), "climbers[0]", ["never reached", "fastest reachable speed"]),
+             line_of(BASE, "name: wren"), "climbers[0]",
+             ["never reached", "fastest reachable speed"]),
             # wren rises to 800 km while petrel comes down from 900 km to 700 km: they meet.
             ("overlapping climbers", mutate(BASE, "to: 600 km", "to: 800 km"),
              line_of(BASE, "name: petrel"), "climbers[1]", ["wren", "petrel", "same stretch"]),
@@ -170,7 +171,8 @@ def main():
             if name == "cruise speed never reached":
                 m = re.search(r"fastest reachable speed there is ([0-9.]+) km/h", p.stderr)
                 got = float(m.group(1)) if m else float("nan")
-                c.check(abs(got / REACHABLE_KM_H - 1) < 5e-3, f"{name}: the fastest reachable speed",
+                c.check(abs(got / REACHABLE_KM_H - 1) < 5e-3,
+                        f"{name}: the fastest reachable speed",
                         f"{got} km/h against {REACHABLE_KM_H:.1f} km/h")
             # `hawser check` validates only; architecture.md: it reports every problem too.
             q = hawser("check", path)

@@ -430,7 +430,8 @@ TEST_CASE("a climber parked on a node is that node with the climber's mass added
       CHECK(a.equilibrium.tension_n[e] == Approx(b.equilibrium.tension_n[e]).epsilon(1e-10));
       CHECK(a.equilibrium.l0_m[e] == Approx(b.equilibrium.l0_m[e]).epsilon(1e-15));
     }
-    CHECK((a.mesh.position - b.mesh.position).cwiseAbs().maxCoeff() < 1e-10 * b.mesh.position.cwiseAbs().maxCoeff());
+    CHECK((a.mesh.position - b.mesh.position).cwiseAbs().maxCoeff() <
+          1e-10 * b.mesh.position.cwiseAbs().maxCoeff());
     // Modes: the climber's consistent mass in M makes them those of the heavier node.
     ModalOptions mo;
     mo.modes = 6;

@@ -2,7 +2,6 @@
 // fixed and the nodes move under what is hung on the tether. Every check value names its
 // source.
 #include <catch2/catch.hpp>
-
 #include <chrono>
 #include <cmath>
 #include <functional>
@@ -46,14 +45,19 @@ std::string hanging_bar(double tip_kg) {
   std::ostringstream y;
   y.precision(17);
   y << "name: hanging bar\n"
-    << "material: {density: 1000, youngs_modulus: 1e10, ultimate_strength: 1e15, damping_time: 0, kind: invented}\n"
-    << "field: {kind: uniform, gravity: 9.81, cable_length: 100 m, cable_area: 1e-4, far_end: free}\n"
+    << "material: {density: 1000, youngs_modulus: 1e10, ultimate_strength: 1e15, damping_time: 0, "
+       "kind: invented}\n"
+    << "field: {kind: uniform, gravity: 9.81, cable_length: 100 m, cable_area: 1e-4, far_end: "
+       "free}\n"
     << "mesh: {elements: 100}\n"
-    << "simulation: {duration: 1, output_interval: 1, method: bdf, rtol: 1e-8, atol_position: 1e-9, "
+    << "simulation: {duration: 1, output_interval: 1, method: bdf, rtol: 1e-8, atol_position: "
+       "1e-9, "
     << "atol_velocity: 1e-9}\n";
   if (tip_kg > 0)
-    y << "climbers:\n  - {name: tip, mass: " << tip_kg << ", from: 100 m, to: 50 m, direction: down, "
-      << "cruise_speed: 1 m/s, acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, start_time: 1e9}\n";
+    y << "climbers:\n  - {name: tip, mass: " << tip_kg
+      << ", from: 100 m, to: 50 m, direction: down, "
+      << "cruise_speed: 1 m/s, acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, start_time: "
+         "1e9}\n";
   return y.str();
 }
 
@@ -65,7 +69,8 @@ double sum(const std::vector<double>& v) {
 
 }  // namespace
 
-TEST_CASE("an elastic bar hanging under its own weight, then with a tip mass hung on it", "[statics]") {
+TEST_CASE("an elastic bar hanging under its own weight, then with a tip mass hung on it",
+          "[statics]") {
   // Timoshenko & Gere, Mechanics of Materials (the prismatic bar hanging under its own weight
   // and an end load): stretch = rho g L^2 / (2 E) + P L / (E A), with rho the mass per unit
   // (unstretched) volume and L the unstretched length. The lumped-mass bar gives the first
@@ -84,26 +89,31 @@ TEST_CASE("an elastic bar hanging under its own weight, then with a tip mass hun
   const double stretch_bare = bare.mesh.position(0, last) - l0;
   CHECK(stretch_bare == Approx(rho * g * l0 * l0 / (2 * e)).epsilon(1e-4));
   // L0 is the as-built tether's: hanging the mass on it changes none of them.
-  for (std::size_t k = 0; k < bare.elements(); ++k) CHECK(loaded.equilibrium.l0_m[k] == bare.equilibrium.l0_m[k]);
+  for (std::size_t k = 0; k < bare.elements(); ++k)
+    CHECK(loaded.equilibrium.l0_m[k] == bare.equilibrium.l0_m[k]);
   // The tip mass adds m g L / (E A) to the stretch (same source), the whole bar moving down.
   const double extra = loaded.mesh.position(0, last) - bare.mesh.position(0, last);
   CHECK(extra == Approx(tip * g * l0 / (e * a)).epsilon(1e-9));
   const double stretch_loaded = loaded.mesh.position(0, last) - l0;
-  CHECK(stretch_loaded == Approx(rho * g * l0 * l0 / (2 * e) + tip * g * l0 / (e * a)).epsilon(1e-4));
+  CHECK(stretch_loaded ==
+        Approx(rho * g * l0 * l0 / (2 * e) + tip * g * l0 / (e * a)).epsilon(1e-4));
   // Every element carries the tip's weight more (statics of the free body below it).
   for (std::size_t k = 0; k < bare.elements(); ++k)
-    CHECK(loaded.equilibrium.tension_n[k] - bare.equilibrium.tension_n[k] == Approx(tip * g).epsilon(1e-8));
+    CHECK(loaded.equilibrium.tension_n[k] - bare.equilibrium.tension_n[k] ==
+          Approx(tip * g).epsilon(1e-8));
   CHECK(loaded.equilibrium.load_steps >= 1);
   CHECK(loaded.equilibrium.load_case.find("tip") != std::string::npos);
 }
 
-TEST_CASE("a hanging chain with a point mass at midspan is the catenary with a point load", "[statics]") {
+TEST_CASE("a hanging chain with a point mass at midspan is the catenary with a point load",
+          "[statics]") {
   // Inextensible limit (strain below 2e-5). Chain of length L between supports at the same
   // level a span S apart, weight w per unit length, point weight P at midspan. By symmetry,
   // each half is a catenary of horizontal tension H whose slope jumps at the load by P / H
   // (Irvine, Cable Structures, 1981, chapter 1, the cable with a concentrated load):
   //   y(x) = (H / w) (cosh(w x / H + a) - cosh a),  sinh a = P / (2 H),
-  //   L / 2 = (H / w) (sinh(w S / (2 H) + a) - sinh a),  sag = (H / w) (cosh(w S/(2H) + a) - cosh a).
+  //   L / 2 = (H / w) (sinh(w S / (2 H) + a) - sinh a),  sag = (H / w) (cosh(w S/(2H) + a) - cosh
+  //   a).
   // Gravity pulls along -y (UniformGravity), across the span along +x: this uses the bench's
   // models directly, since the bench scenario's gravity is along its cable.
   const int n = 200;
@@ -115,7 +125,8 @@ TEST_CASE("a hanging chain with a point mass at midspan is the catenary with a p
   built[0] = built[n] = 0.5 * mu * h0;
   Eigen::VectorXd loaded = built;
   loaded[n / 2] += p_kg;
-  BarElements bars(std::vector<double>(n, ea), std::vector<double>(n, h0), std::vector<double>(n, 0.0));
+  BarElements bars(std::vector<double>(n, ea), std::vector<double>(n, h0),
+                   std::vector<double>(n, 0.0));
   UniformGravity gravity(g, -Eigen::Vector3d::UnitY());
   // The discrete chain's exact equilibrium (a funicular polygon, statics of each node): the
   // link tensions (H, V_k) with V_{k+1} = V_k + W_{k+1} from V_0 = -(sum of the free node
@@ -159,7 +170,8 @@ TEST_CASE("a hanging chain with a point mass at midspan is the catenary with a p
   // The model's horizontal tension: the x component of the tension in the first link.
   const Eigen::Vector3d d0 = st.position_m.col(1) - st.position_m.col(0);
   const double h_model = st.tension_n[0] * d0.x() / d0.norm();
-  INFO("H " << h_model << " N against " << h << " N; sag " << -st.position_m(1, n / 2) << " m against " << sag);
+  INFO("H " << h_model << " N against " << h << " N; sag " << -st.position_m(1, n / 2)
+            << " m against " << sag);
   // The lumped chain differs from the continuous one by O((L / n)^2): 1e-4 is ample at n = 200.
   CHECK(h_model == Approx(h).epsilon(1e-4));
   CHECK(-st.position_m(1, n / 2) == Approx(sag).epsilon(1e-4));
@@ -170,7 +182,8 @@ TEST_CASE("a hanging chain with a point mass at midspan is the catenary with a p
   // A support carries half of everything hung: (w L + P) / 2 vertically (statics).
   const Eigen::Vector3d dn = st.position_m.col(n) - st.position_m.col(n - 1);
   // (less the half link at each support, which rests on the support itself).
-  CHECK(st.tension_n[n - 1] * dn.y() / dn.norm() == Approx((w * length + p) / 2 - 0.5 * mu * h0 * g).epsilon(1e-9));
+  CHECK(st.tension_n[n - 1] * dn.y() / dn.norm() ==
+        Approx((w * length + p) / 2 - 0.5 * mu * h0 * g).epsilon(1e-9));
 }
 
 TEST_CASE("a taut string with a mass at midspan: its first period", "[statics][modes]") {
@@ -201,7 +214,8 @@ TEST_CASE("a taut string with a mass at midspan: its first period", "[statics][m
   const double mu = (model.mesh.node_mass.sum() - 0.0) / length;
   const double t = model.equilibrium.tension_n[0];
   const double ratio = mu * length / m_c;
-  const double z = bisect([&](double q) { return q * std::tan(q) - ratio; }, 1e-9, M_PI / 2 - 1e-12);
+  const double z =
+      bisect([&](double q) { return q * std::tan(q) - ratio; }, 1e-9, M_PI / 2 - 1e-12);
   const double k = 2 * z / length;
   const double period = 2 * M_PI / (k * std::sqrt(t / mu));
   INFO("model " << r.modes[0].period_s << " s, closed form " << period << " s");
@@ -221,10 +235,12 @@ TEST_CASE("a parked climber pulls the planet tether down with L0 fixed", "[stati
   };
   const TetherModel bare = build_model(load_scenario(kDemo, with({"climbers=[]"})));
   const std::string climber =
-      "climbers=[{name: c10, mass: 10 t, from: 20000 km, to: 21000 km, direction: up, cruise_speed: 200 km/h, "
+      "climbers=[{name: c10, mass: 10 t, from: 20000 km, to: 21000 km, direction: up, "
+      "cruise_speed: 200 km/h, "
       "acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, start_time: 100 d}]";
   const TetherModel loaded = build_model(load_scenario(kDemo, with({climber})));
-  for (std::size_t k = 0; k < bare.elements(); ++k) REQUIRE(loaded.equilibrium.l0_m[k] == bare.equilibrium.l0_m[k]);
+  for (std::size_t k = 0; k < bare.elements(); ++k)
+    REQUIRE(loaded.equilibrium.l0_m[k] == bare.equilibrium.l0_m[k]);
   const std::size_t top = bare.nodes() - 1;
   const double drop = bare.mesh.position(0, top) - loaded.mesh.position(0, top);
   INFO("top drops " << drop / 1e3 << " km");
@@ -241,7 +257,8 @@ TEST_CASE("a parked climber pulls the planet tether down with L0 fixed", "[stati
   // start point, so its forces at rest are those of the parked climber.
   const TetherState s{0.0, loaded.mesh.position, rest, loaded.mesh.node_mass};
   for (const ForceModel* m : loaded.mean_forces()) m->add_forces(s, f);
-  const double t_max = *std::max_element(loaded.equilibrium.tension_n.begin(), loaded.equilibrium.tension_n.end());
+  const double t_max =
+      *std::max_element(loaded.equilibrium.tension_n.begin(), loaded.equilibrium.tension_n.end());
   CHECK(f.rightCols(loaded.nodes() - 1).cwiseAbs().maxCoeff() < 1e-8 * t_max);
 }
 
@@ -250,23 +267,29 @@ TEST_CASE("a run started in the loaded static state stays there", "[statics][dyn
   // state of a parked climber (10 t at 20,000 km, leaving after 100 days) and a counterweight
   // 2 % heavier than the design's, for a simulated day. Acceptance as for the unloaded
   // tether (test_dynamics_planet.cpp): no node moves by more than 1e-6 of the tether length.
-  const double cw = build_model(load_scenario(kDemo, {"mesh.elements=100", "climbers=[]"})).mesh.counterweight_mass;
+  const double cw = build_model(load_scenario(kDemo, {"mesh.elements=100", "climbers=[]"}))
+                        .mesh.counterweight_mass;
   const Scenario sc = load_scenario(
       kDemo, {"mesh.elements=100", "simulation.duration=1 d", "simulation.output_interval=1 h",
               "initial.displacements=[]", "counterweight.mass=" + number(1.02 * cw) + " kg",
               "climbers=[{name: c10, mass: 10 t, from: 20000 km, to: 21000 km, direction: up, "
-              "cruise_speed: 200 km/h, acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, start_time: 100 d}]"});
+              "cruise_speed: 200 km/h, acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, "
+              "start_time: 100 d}]"});
   testing::MemorySink sink;
   TetherModel model = build_model(sc);
   TetherSystem sys(model);
-  const RunSummary s = run_simulation(sys, initial_state(sys, sc.initial), run_options(sc.simulation, sys.layout()), sink);
+  const RunSummary s = run_simulation(sys, initial_state(sys, sc.initial),
+                                      run_options(sc.simulation, sys.layout()), sink);
   REQUIRE(s.status == "complete");
   REQUIRE(model.equilibrium.newton_iterations > 0);  // it was a loaded state
-  const double length = (model.mesh.position.col(model.nodes() - 1) - model.mesh.position.col(0)).norm();
+  const double length =
+      (model.mesh.position.col(model.nodes() - 1) - model.mesh.position.col(0)).norm();
   double worst = 0.0;
-  for (const auto& x : sink.x) worst = std::max(worst, (x - model.mesh.position).cwiseAbs().maxCoeff());
+  for (const auto& x : sink.x)
+    worst = std::max(worst, (x - model.mesh.position).cwiseAbs().maxCoeff());
   const double moved = (model.mesh.position - model.mesh.as_built_position).cwiseAbs().maxCoeff();
-  INFO("largest displacement in the run " << worst << " m; the static state is " << moved << " m from the as-built one");
+  INFO("largest displacement in the run " << worst << " m; the static state is " << moved
+                                          << " m from the as-built one");
   CHECK(worst < 1e-6 * length);
   CHECK(moved > 1e3);  // and the loads did move it (so the check above can fail)
 }
@@ -275,11 +298,13 @@ TEST_CASE("a climber at the anchor changes nothing", "[statics]") {
   // Its weight goes to the held anchor node alone (xi = 0 on element 0): statics.
   const TetherModel bare = build_model(load_scenario(kDemo, {"mesh.elements=100", "climbers=[]"}));
   const TetherModel at_anchor = build_model(load_scenario(
-      kDemo, {"mesh.elements=100", "climbers=[{name: a, mass: 20 t, from: 0 km, to: 100 km, direction: up, "
-                                   "cruise_speed: 200 km/h, acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, "
-                                   "start_time: 100 d}]"}));
+      kDemo, {"mesh.elements=100",
+              "climbers=[{name: a, mass: 20 t, from: 0 km, to: 100 km, direction: up, "
+              "cruise_speed: 200 km/h, acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, "
+              "start_time: 100 d}]"}));
   CHECK((at_anchor.mesh.position - bare.mesh.position).cwiseAbs().maxCoeff() == 0.0);
-  for (std::size_t k = 0; k < bare.elements(); ++k) CHECK(at_anchor.equilibrium.tension_n[k] == bare.equilibrium.tension_n[k]);
+  for (std::size_t k = 0; k < bare.elements(); ++k)
+    CHECK(at_anchor.equilibrium.tension_n[k] == bare.equilibrium.tension_n[k]);
 }
 
 TEST_CASE("a counterweight other than the design's is a load on the as-built tether", "[statics]") {
@@ -288,9 +313,11 @@ TEST_CASE("a counterweight other than the design's is a load on the as-built tet
   // hanging from it: the continuation must end in a clear error naming the load.
   const TetherModel bare = build_model(load_scenario(kDemo, {"mesh.elements=100", "climbers=[]"}));
   const double cw = bare.mesh.counterweight_mass;
-  const TetherModel heavy = build_model(
-      load_scenario(kDemo, {"mesh.elements=100", "climbers=[]", "counterweight.mass=" + number(1.05 * cw) + " kg"}));
-  for (std::size_t k = 0; k < bare.elements(); ++k) REQUIRE(heavy.equilibrium.l0_m[k] == bare.equilibrium.l0_m[k]);
+  const TetherModel heavy =
+      build_model(load_scenario(kDemo, {"mesh.elements=100", "climbers=[]",
+                                        "counterweight.mass=" + number(1.05 * cw) + " kg"}));
+  for (std::size_t k = 0; k < bare.elements(); ++k)
+    REQUIRE(heavy.equilibrium.l0_m[k] == bare.equilibrium.l0_m[k]);
   const std::size_t top = bare.nodes() - 1;
   CHECK(heavy.mesh.position(0, top) > bare.mesh.position(0, top) + 100.0);
   // The base tension grows by the extra counterweight's net outward force, up to the
@@ -299,31 +326,37 @@ TEST_CASE("a counterweight other than the design's is a load on the as-built tet
   CHECK(heavy.equilibrium.load_case.find("counterweight") != std::string::npos);
 }
 
-TEST_CASE("static tides: the starting state carries the Moon's tide at t = 0", "[statics][environment]") {
+TEST_CASE("static tides: the starting state carries the Moon's tide at t = 0",
+          "[statics][environment]") {
   // Asked for by environment.tides.static: the state balances every force of the model at
   // t = 0, the tide included (statics), and the tide moved it (so that this can fail).
-  const std::vector<std::string> base{"mesh.elements=100", "climbers=[]", "environment.tides.moon=true"};
+  const std::vector<std::string> base{"mesh.elements=100", "climbers=[]",
+                                      "environment.tides.moon=true"};
   auto with = [&](const std::string& o) {
     std::vector<std::string> v = base;
     v.push_back(o);
     return v;
   };
-  const TetherModel tided = build_model(load_scenario(kDemo, with("environment.tides.static=true")));
-  const TetherModel plain = build_model(load_scenario(kDemo, with("environment.tides.static=false")));
+  const TetherModel tided =
+      build_model(load_scenario(kDemo, with("environment.tides.static=true")));
+  const TetherModel plain =
+      build_model(load_scenario(kDemo, with("environment.tides.static=false")));
   CHECK(tided.equilibrium.load_case.find("tides") != std::string::npos);
   CHECK(plain.equilibrium.load_case == "no load");
   Matrix3X f = Matrix3X::Zero(3, tided.nodes());
   const Matrix3X rest = Matrix3X::Zero(3, tided.nodes());
   const TetherState s{0.0, tided.mesh.position, rest, tided.mesh.node_mass};
   for (const ForceModel* m : tided.mean_forces()) m->add_forces(s, f);
-  const double t_max = *std::max_element(tided.equilibrium.tension_n.begin(), tided.equilibrium.tension_n.end());
+  const double t_max =
+      *std::max_element(tided.equilibrium.tension_n.begin(), tided.equilibrium.tension_n.end());
   CHECK(f.rightCols(tided.nodes() - 1).cwiseAbs().maxCoeff() < 1e-8 * t_max);
   const double moved = (tided.mesh.position - plain.mesh.position).cwiseAbs().maxCoeff();
   INFO("the tide moves the static state by up to " << moved << " m");
   CHECK(moved > 1.0);
 }
 
-TEST_CASE("the mean wind of the storm leans the ribbon; its modes are damped", "[statics][modes][environment]") {
+TEST_CASE("the mean wind of the storm leans the ribbon; its modes are damped",
+          "[statics][modes][environment]") {
   const auto t0 = std::chrono::steady_clock::now();
   const TetherModel storm = build_model(load_scenario(kStorm, {}));
   const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
@@ -349,7 +382,8 @@ TEST_CASE("the mean wind of the storm leans the ribbon; its modes are damped", "
   const Matrix3X rest = Matrix3X::Zero(3, storm.nodes());
   const TetherState s{0.0, storm.mesh.position, rest, storm.mesh.node_mass};
   for (const ForceModel* m : storm.mean_forces()) m->add_forces(s, f);
-  const double t_max = *std::max_element(storm.equilibrium.tension_n.begin(), storm.equilibrium.tension_n.end());
+  const double t_max =
+      *std::max_element(storm.equilibrium.tension_n.begin(), storm.equilibrium.tension_n.end());
   CHECK(f.rightCols(storm.nodes() - 1).cwiseAbs().maxCoeff() < 1e-8 * t_max);
   // Modes about it: the drag of the mean wind damps; nothing grows.
   ModalOptions mo;
