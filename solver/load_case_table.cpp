@@ -15,16 +15,6 @@ namespace hawser {
 
 namespace {
 
-/// Material coordinate s [m] of an altitude on the as-built tether (linear on each element).
-double material_coordinate(const std::vector<double>& reference_m, const std::vector<double>& s0_m,
-                           double h_m) {
-  const auto it = std::upper_bound(reference_m.begin(), reference_m.end(), h_m);
-  std::size_t e = static_cast<std::size_t>(std::max<long>(0, (it - reference_m.begin()) - 1));
-  e = std::min(e, reference_m.size() - 2);
-  const double xi = (h_m - reference_m[e]) / (reference_m[e + 1] - reference_m[e]);
-  return s0_m[e] + xi * (s0_m[e + 1] - s0_m[e]);
-}
-
 /// Radius of the point at material coordinate s in the geometry x [m].
 double radius_at(const Matrix3X& x, const std::vector<double>& s0_m, double s_m) {
   const auto it = std::upper_bound(s0_m.begin(), s0_m.end(), s_m);

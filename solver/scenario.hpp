@@ -104,6 +104,7 @@ struct Scenario {
   OutputSpec output;
   EnvironmentSpec environment;  // air, wind, tides, cuts, strikes (solver/environment_builder.hpp)
   std::vector<LoadCaseSpec> load_cases;  // the load-case table of `hawser design` (issue 13)
+  int built_under = -1;                  // load case the tether is built under; -1: unloaded
   double min_base_margin = 0.0;          // warn below this base-tension margin [-]
   ScenarioValues values;     // everything as validated, with locations
 };

@@ -134,6 +134,18 @@ void build_load_cases(const ScenarioValues& v, double length_m, Scenario& s,
     }
     s.load_cases.push_back(c);
   }
+  if (!v.has("tether.built_under")) return;
+  const std::string name = v.text("tether.built_under");
+  for (std::size_t i = 0; i < s.load_cases.size(); ++i)
+    if (s.load_cases[i].name == name) s.built_under = static_cast<int>(i);
+  if (s.built_under < 0) {
+    problems.push_back({v.where("tether.built_under"), "tether.built_under",
+                        "no load case named '" + name + "' in load_cases"});
+  } else if (s.load_cases[s.built_under].mean_wind || s.load_cases[s.built_under].tides) {
+    problems.push_back({v.where("tether.built_under"), "tether.built_under",
+                        "a tether is built along its straight design line: the case may hold "
+                        "parked climbers and a counterweight change, not wind or tides"});
+  }
 }
 
 Scenario build(const ReadScenario& read, const std::string& file) {

@@ -1,5 +1,6 @@
 #include "solver/static_loads.hpp"
 
+#include <algorithm>
 #include <cstdio>
 #include <memory>
 #include <sstream>
@@ -40,6 +41,15 @@ std::string describe(const std::vector<Climber>& parked, double cw_kg, double cw
 
 }  // namespace
 
+double material_coordinate(const std::vector<double>& reference_m, const std::vector<double>& s0_m,
+                           double h_m) {
+  const auto it = std::upper_bound(reference_m.begin(), reference_m.end(), h_m);
+  std::size_t e = static_cast<std::size_t>(std::max<long>(0, (it - reference_m.begin()) - 1));
+  e = std::min(e, reference_m.size() - 2);
+  const double xi = (h_m - reference_m[e]) / (reference_m[e + 1] - reference_m[e]);
+  return s0_m[e] + xi * (s0_m[e + 1] - s0_m[e]);
+}
+
 Climber parked_climber(const std::string& name, double mass_kg, double s_m) {
   Climber c;
   c.name = name;
@@ -75,6 +85,7 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
   if (l.tides)
     for (const auto& b : m.body)
       if (std::dynamic_pointer_cast<const TidalForce>(b)) tide = b;
+  const auto untided = point_models;  // what the built-under climbers felt when it was built
   if (tide) point_models.push_back(tide);
   std::unique_ptr<ClimberLoad> parked;
   if (!l.parked.empty()) {
@@ -87,15 +98,27 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
     if (!parked->attachments(0.0).empty()) set.added.push_back(parked.get());
   }
   if (l.mean_wind && m.mean_drag) set.added.push_back(m.mean_drag.get());
+  // The climbers the tether was built under come off (they are in `loads` again if they stay).
+  std::unique_ptr<ClimberLoad> built_under;
+  if (!m.built_under.empty()) {
+    built_under = std::make_unique<ClimberLoad>(m.built_under, m.equilibrium.s0_m, untided,
+                                                m.mesh.as_built_position);
+    built_under->set_parked(true);
+    set.removed.push_back(built_under.get());
+  }
   if (tide) set.added.push_back(tide.get());
   set.first_free = 1;
   set.last_free = m.nodes() - (m.far_end ? 2 : 1);
   set.ground_radius_m = m.reference_radius_m;  // the anchor is on it; 0 on the bench
 
   LoadedState out;
-  out.loaded = !set.added.empty() || set.loaded_mass_kg != set.built_mass_kg;
+  out.loaded = !set.added.empty() || !set.removed.empty() ||
+               set.loaded_mass_kg != set.built_mass_kg;
   set.description = describe(l.parked, l.counterweight_kg, m.mesh.as_built_counterweight_kg, planet,
                              l.mean_wind && m.mean_drag, tide != nullptr);
+  if (set.description.empty()) set.description = "no load";
+  if (!m.built_under_case.empty())
+    set.description += " (on the tether built under load case '" + m.built_under_case + "')";
   out.description = out.loaded ? set.description : "no load";
   if (!out.loaded) {
     out.state.position_m = m.mesh.as_built_position;

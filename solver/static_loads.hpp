@@ -26,6 +26,11 @@ struct LoadedState {
   bool loaded = false;      // false: nothing to hang; state is the as-built one
 };
 
+/// Material coordinate s [m] of altitude h [m] along the as-built tether, from the nodes'
+/// altitudes (reference_m) and material coordinates (s0_m), linear on each element.
+double material_coordinate(const std::vector<double>& reference_m, const std::vector<double>& s0_m,
+                           double h_m);
+
 /// A climber of `mass_kg` parked for ever at material coordinate `s_m`.
 Climber parked_climber(const std::string& name, double mass_kg, double s_m);
 

@@ -27,7 +27,8 @@ class StaticResidual {
         f_(3, nodes_),
         fa_(3, nodes_),
         jc_(nodes_),
-        ja_(nodes_) {}
+        ja_(nodes_),
+        jr_(nodes_) {}
 
   Eigen::Index unknowns() const {
     return static_cast<Eigen::Index>(3 * (l_.last_free - l_.first_free + 1));
@@ -47,6 +48,11 @@ class StaticResidual {
       for (const ForceModel* m : l_.added) m->add_forces(s, fa_);
       f_ += lambda_ * fa_;
     }
+    if (lambda_ != 1.0 && !l_.removed.empty()) {
+      fa_.setZero();
+      for (const ForceModel* m : l_.removed) m->add_forces(s, fa_);
+      f_ += (1.0 - lambda_) * fa_;
+    }
     Eigen::VectorXd r(unknowns());
     for (std::size_t k = l_.first_free; k <= l_.last_free; ++k)
       r.segment<3>(static_cast<Eigen::Index>(3 * (k - l_.first_free))) =
@@ -62,11 +68,14 @@ class StaticResidual {
     ja_.set_zero();
     add_complete_jacobian(l_.common, s, l_.first_free, l_.last_free, jc_);
     if (lambda_ != 0.0) add_complete_jacobian(l_.added, s, l_.first_free, l_.last_free, ja_);
+    jr_.set_zero();
+    if (lambda_ != 1.0) add_complete_jacobian(l_.removed, s, l_.first_free, l_.last_free, jr_);
     triplets_.clear();
     const std::size_t first = l_.first_free, last = l_.last_free;
     for (std::size_t i = first; i <= last; ++i)
       for (std::size_t j = (i > first ? i - 1 : i); j <= std::min(last, i + 1); ++j) {
-        const Eigen::Matrix3d b = jc_.dx(i, j) + lambda_ * ja_.dx(i, j);
+        const Eigen::Matrix3d b =
+            jc_.dx(i, j) + lambda_ * ja_.dx(i, j) + (1.0 - lambda_) * jr_.dx(i, j);
         for (int a = 0; a < 3; ++a)
           for (int c = 0; c < 3; ++c)
             triplets_.emplace_back(static_cast<Eigen::Index>(3 * (i - first) + a),
@@ -96,7 +105,7 @@ class StaticResidual {
   Matrix3X rest_;
   Eigen::VectorXd mass_;
   Matrix3X f_, fa_;
-  NodeJacobian jc_, ja_;
+  NodeJacobian jc_, ja_, jr_;
   std::vector<Eigen::Triplet<double>> triplets_;
   SpMat j_;
   std::vector<double> tension_;

@@ -16,13 +16,16 @@
 //
 // Continuation in load (a natural-parameter homotopy, Allgower & Georg, Numerical
 // Continuation Methods, 1990): with the load factor lambda in [0, 1],
-//   R(x, lambda) = F_common(x; m_built + lambda (m_loaded - m_built)) + lambda F_added(x),
+//   R(x, lambda) = F_common(x; m_built + lambda (m_loaded - m_built)) + lambda F_added(x)
+//                  + (1 - lambda) F_removed(x),
 // where F_common are the models present in every state (bars, gravity, frame) with the node
 // masses interpolated (gravity and the frame's forces are linear in mass: a heavier or lighter
 // counterweight), and F_added the loads the as-built tether did not carry (parked climbers,
-// the mean wind's drag). At lambda = 0 the as-built geometry is the solution. The first
-// attempt is the whole load in one step; a step whose Newton iteration fails is halved and
-// retried from the last converged state, a successful one lets the next grow again.
+// the mean wind's drag), F_removed those it was built under and no longer carries (the parked
+// climbers of a design load case, tether.built_under). At lambda = 0 the as-built geometry is
+// the solution. The first attempt is the whole load in one step; a step whose Newton iteration
+// fails is halved and retried from the last converged state, a successful one lets the next
+// grow again.
 // A load step counts only if Newton's method converged without damping below min_damping:
 // a heavily damped iteration may end on another branch of states far from the one followed
 // (measured on scenarios/storm.yaml: with any damping allowed, the end state depended on the
@@ -54,6 +57,8 @@ struct StaticLoadSet {
   const BarElements* bars = nullptr;          // for tensions and the slack check
   std::vector<const ForceModel*> common;      // bars, gravity, frame: in every state
   std::vector<const ForceModel*> added;       // climbers, mean drag: scaled by the load factor
+  std::vector<const ForceModel*> removed;     // loads the tether was built under (a design
+                                              // load case): scaled by 1 - load factor
   Eigen::VectorXd built_mass_kg;              // (N+1) node masses of the as-built tether [kg]
   Eigen::VectorXd loaded_mass_kg;             // (N+1) node masses under load [kg]
   std::size_t first_free = 1, last_free = 0;  // nodes that move; the others are held

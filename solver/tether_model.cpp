@@ -45,6 +45,7 @@ TetherModel build_as_built(const Scenario& sc) {
     m.mesh = build_planet_mesh(design, sc.mesh);
     counterweight_kg =
         sc.counterweight.mass_kg ? *sc.counterweight.mass_kg : design.counterweight_mass();
+    // (with tether.built_under, the as-built counterweight is that case's; see below)
     m.body.push_back(std::make_unique<PlanetGravity>(sc.planet, sc.j2));
     m.body.push_back(std::make_unique<RotatingFrame>(sc.planet.spin_rate_rad_s));
     m.spin_rate_rad_s = sc.planet.spin_rate_rad_s;
@@ -53,10 +54,45 @@ TetherModel build_as_built(const Scenario& sc) {
   m.static_body_models = m.body.size();
   m.anchor = std::make_unique<FixedPoint>();
   std::vector<const ForceModel*> body;
-  for (const auto& b : m.body) body.push_back(b.get());
-  // The exact discrete equilibrium of the unloaded design: its L0 are the as-built tether.
+  std::vector<std::shared_ptr<const ForceModel>> point_models;
+  for (const auto& b : m.body) {
+    body.push_back(b.get());
+    if (b->acts_on_point_masses()) point_models.push_back(b);
+  }
+  // Built under a design load case: its counterweight at the top and its climbers parked on
+  // the design line (positions on the reference line: the fraction of an element is the same
+  // in material coordinates, which are not known yet).
+  const std::vector<double> reference = reference_distance(m.mesh);
+  std::unique_ptr<ClimberLoad> case_climbers;
+  std::vector<double> case_altitudes_m;
+  if (sc.built_under >= 0) {
+    const LoadCaseSpec& c = sc.load_cases[static_cast<std::size_t>(sc.built_under)];
+    const double cw = m.mesh.as_built_counterweight_kg * (1.0 + c.counterweight_change);
+    m.mesh.node_mass[m.mesh.nodes() - 1] += cw - m.mesh.as_built_counterweight_kg;
+    m.mesh.as_built_counterweight_kg = cw;
+    m.mesh.counterweight_mass = cw;
+    std::vector<Climber> on_line;
+    for (std::size_t j = 0; j < c.climbers.size(); ++j) {
+      on_line.push_back(parked_climber(c.name + " #" + std::to_string(j + 1),
+                                       c.climbers[j].mass_kg, c.climbers[j].altitude_m));
+      case_altitudes_m.push_back(c.climbers[j].altitude_m);
+    }
+    if (!on_line.empty()) {
+      case_climbers = std::make_unique<ClimberLoad>(on_line, reference, point_models,
+                                                    m.mesh.position);
+      case_climbers->set_parked(true);
+      body.push_back(case_climbers.get());
+    }
+    m.built_under_case = c.name;
+  }
+  // The exact discrete equilibrium of the design line: its L0 are the as-built tether.
   m.equilibrium =
       solve_equilibrium(m.mesh, sc.material.youngs_modulus_pa, sc.field.pretension_n, body);
+  for (std::size_t j = 0; case_climbers && j < case_altitudes_m.size(); ++j)
+    m.built_under.push_back(parked_climber(case_climbers->climbers()[j].name,
+                                           case_climbers->climbers()[j].mass_kg,
+                                           material_coordinate(reference, m.equilibrium.s0_m,
+                                                               case_altitudes_m[j])));
   std::vector<double> ea, tau;
   for (std::size_t e = 0; e < m.mesh.elements(); ++e) {
     ea.push_back(sc.material.youngs_modulus_pa * m.mesh.element_area[e]);

@@ -31,6 +31,9 @@ struct TetherModel {
                                                  // with the climbers, which feel some of them
   std::size_t static_body_models = 0;             // the first ones (gravity, frame) act in
                                                  // every static state; the rest (drag, tides) not
+  std::vector<Climber> built_under;               // parked climbers the tether was built under
+                                                 // (tether.built_under), at material coordinates
+  std::string built_under_case;                   // that load case's name; empty: built unloaded
   std::unique_ptr<PrescribedMotion> anchor;       // node 0
   std::unique_ptr<PrescribedMotion> far_end;      // node N, or null when free
   double ultimate_strength_pa = 0.0;

@@ -218,6 +218,16 @@ def check_bad(c, a, text, tmp):
         hit = any(f"{path}:{line}:" in ln and key in ln for ln in p.stderr.splitlines())
         c.check(p.returncode == 2 and hit and not p.stdout.strip(), f"refused: {key}",
                 f"exit {p.returncode}: {p.stderr.strip()!r}")
+    # tether.built_under must name a load case.
+    path = os.path.join(tmp, "built.yaml")
+    with open(path, "w") as fh:
+        fh.write(text + "load_cases:\n  - name: x\n")
+    p = run(a.hawser, "check", path, "--set", "tether.built_under=nope")
+    c.check(p.returncode == 2 and "tether.built_under" in p.stderr
+            and "no load case named 'nope'" in p.stderr, "refused: tether.built_under",
+            f"exit {p.returncode}: {p.stderr.strip()!r}")
+    p = run(a.hawser, "check", path, "--set", "tether.built_under=x")
+    c.check(p.returncode == 0, "accepted: tether.built_under naming a case", p.stderr.strip())
 
 
 def main():

@@ -294,6 +294,34 @@ TEST_CASE("a run started in the loaded static state stays there", "[statics][dyn
   CHECK(moved > 1e3);  // and the loads did move it (so the check above can fail)
 }
 
+TEST_CASE("a tether built under a design load case", "[statics]") {
+  // tether.built_under: the L0 put the straight design line in equilibrium with the case's
+  // climber (20 t at 20,000 km). With that climber parked there, the run starts on the design
+  // line itself (statics: the same loads as the build); without it, the tether rises (the
+  // climber's weight below the synchronous altitude pulled it down).
+  const std::string cases =
+      "load_cases=[{name: built, climbers: [{mass: 20 t, altitude: 20000 km}]}]";
+  const std::string parked =
+      "climbers=[{name: c20, mass: 20 t, from: 20000 km, to: 21000 km, direction: up, "
+      "cruise_speed: 200 km/h, acceleration: 0.1 m/s^2, deceleration: 0.1 m/s^2, "
+      "start_time: 100 d}]";
+  const TetherModel unloaded =
+      build_model(load_scenario(kDemo, {"mesh.elements=100", "climbers=[]"}));
+  const TetherModel with_it = build_model(load_scenario(
+      kDemo, {"mesh.elements=100", cases, "tether.built_under=built", parked}));
+  const TetherModel without = build_model(load_scenario(
+      kDemo, {"mesh.elements=100", cases, "tether.built_under=built", "climbers=[]"}));
+  CHECK(with_it.built_under_case == "built");
+  CHECK((with_it.mesh.position - unloaded.mesh.as_built_position).cwiseAbs().maxCoeff() == 0.0);
+  CHECK(with_it.equilibrium.l0_m == without.equilibrium.l0_m);
+  CHECK(with_it.equilibrium.l0_m != unloaded.equilibrium.l0_m);
+  const std::size_t top = unloaded.nodes() - 1;
+  const double rise = without.mesh.position(0, top) - unloaded.mesh.as_built_position(0, top);
+  INFO("without the climber it was built under, the top rises " << rise << " m");
+  CHECK(rise > 1e3);
+  CHECK(without.equilibrium.load_case.find("built under load case 'built'") != std::string::npos);
+}
+
 TEST_CASE("a climber at the anchor changes nothing", "[statics]") {
   // Its weight goes to the held anchor node alone (xi = 0 on element 0): statics.
   const TetherModel bare = build_model(load_scenario(kDemo, {"mesh.elements=100", "climbers=[]"}));
