@@ -78,6 +78,7 @@ class AerodynamicDrag : public ForceModel {
   /// Per element section, drag coefficient Cd [-], the air's density and its wind.
   AerodynamicDrag(std::vector<DragSection> sections, double cd, AirDensity air, std::shared_ptr<const WindField> wind);
   std::string name() const override { return "aerodynamic drag"; }
+  bool exact_position_jacobian() const override { return false; }  // see the Jacobian above
   void add_forces(const TetherState& s, Matrix3X& f) const override;
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
   /// Wind windows and gust onsets and ends.

@@ -50,6 +50,8 @@ class ClimberLoad : public ForceModel {
   ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_nodes,
               std::vector<std::shared_ptr<const ForceModel>> point_models, const Matrix3X& reference_position);
   std::string name() const override { return "climbers"; }
+  /// The drag of climbers with a drag area leaves the change of the air with position out.
+  bool exact_position_jacobian() const override { return !air_; }
   /// The bars, for the tensions next to each climber in the outputs.
   void set_bars(const BarElements* bars) { bars_ = bars; }
   /// The air (density and wind) for the drag of climbers with a drag area.

@@ -46,6 +46,8 @@ class ClimberProfile {
 
   /// A climber waiting at `from` for ever (profiles come from ramps() or table()).
   ClimberProfile() : times_{0.0} {}
+  /// A climber parked at s [m] for ever (static load cases).
+  static ClimberProfile parked(double s_m) { return ClimberProfile(0.0, s_m, s_m); }
   Kinematics at(double t_s) const;
   double start_time() const { return start_; }
   double end_time() const { return times_.back(); }

@@ -76,6 +76,10 @@ class ForceModel {
   /// (gravity, the frame's forces, tides): such a model also acts on a climber, evaluated on
   /// it as on a point mass (models/climber_load.hpp).
   virtual bool acts_on_point_masses() const { return false; }
+  /// False when add_jacobian() leaves terms of dF/dx out (enough to steer an integrator's
+  /// Newton iteration); static solves and linearisations then difference the forces
+  /// (solver/differenced_jacobian.hpp).
+  virtual bool exact_position_jacobian() const { return true; }
   /// F(:, i) += force on node i [N].
   virtual void add_forces(const TetherState& s, Matrix3X& f) const = 0;
   /// Adds this model's derivatives of the forces.

@@ -45,7 +45,8 @@ std::string modes_table(const Scenario& sc, const TetherModel& model, const Moda
   char buf[256];
   os << "hawser modes: " << sc.name << "\n";
   os << "  " << model.elements() << " elements, " << solver_line(r) << "\n";
-  os << "  linearised about the static equilibrium: M q'' + (G + D) q' + K q = 0\n";
+  os << "  linearised about the static state: M q'' + (G + D) q' + K q = 0\n";
+  os << "  static state: the as-built tether under " << model.equilibrium.load_case << "\n";
   os << "  tangent stiffness K: " << stiffness_line(r) << "\n";
   std::snprintf(buf, sizeof buf, "  largest backward error %.2g, %ld operator applications, wall %.3g s\n\n",
                 r.max_backward_error, r.operator_applications, wall_s);
@@ -125,6 +126,7 @@ void write_modes_h5(const std::string& path, const Scenario& sc, const TetherMod
   // Eigen's (3, N+1) column-major is the contract's (N+1, 3) row-major.
   f.write_array("/equilibrium/position", {nn, 3}, model.mesh.position.data(), "m");
   f.write_array("/equilibrium/tension", {ne}, model.equilibrium.tension_n.data(), "N");
+  f.set_attribute("/equilibrium", "load_case", model.equilibrium.load_case);
 
   std::vector<double> period, freq, zeta, re, im, where, frac, shape_re, shape_im;
   std::vector<long long> kind, node;

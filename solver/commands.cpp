@@ -5,6 +5,7 @@
 #include <memory>
 
 #include "solver/design_report.hpp"
+#include "solver/load_case_table.hpp"
 #include "solver/key_reference.hpp"
 #include "solver/errors.hpp"
 #include "solver/initial_state.hpp"
@@ -35,10 +36,21 @@ int cmd_design(const CommonOptions& opt, bool json) {
   }
   const TetherDesign design(EquatorialField(sc.planet, sc.j2), sc.material, sc.tether, sc.counterweight);
   const DesignFigures fig = evaluate_design(design, json ? 400 : 200);
-  if (json)
-    std::cout << design_json(sc, design, fig).dump(1) << '\n';
-  else
-    std::cout << design_table(sc, design, fig);
+  const std::vector<LoadCaseResult> cases = evaluate_load_cases(sc);
+  if (json) {
+    nlohmann::json j = design_json(sc, design, fig);
+    if (!cases.empty()) j["load_cases"] = load_case_json(sc, cases);
+    std::cout << j.dump(1) << '\n';
+  } else {
+    // The load cases go before the closing caution of the design table.
+    std::string text = design_table(sc, design, fig);
+    const auto caution = text.find("\n  hawser is a research tool");
+    text.insert(caution == std::string::npos ? text.size() : caution, load_case_table(sc, cases));
+    std::cout << text;
+  }
+  for (const LoadCaseResult& c : cases)
+    if (!c.warning.empty())
+      std::cerr << "warning: load case " << c.name << ": " << c.warning << "\n";
   return 0;
 }
 

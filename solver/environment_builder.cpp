@@ -243,7 +243,12 @@ void read_tides(Keys& k, const Scenario& s, EnvironmentSpec& env) {
   };
   body("moon", env.tides.moon);
   body("sun", env.tides.sun);
-  if (!env.tides.moon.on && !env.tides.sun.on) return;
+  env.tides.in_static_state = k.has(p + ".static") && v.boolean(p + ".static");
+  if (!env.tides.moon.on && !env.tides.sun.on) {
+    if (env.tides.in_static_state)
+      k.error(p + ".static", "no tide to load it with: set moon or sun");
+    return;
+  }
   const std::string key = p + (env.tides.moon.on ? ".moon" : ".sun");
   if (s.field.uniform) {
     k.error(key, "tides act on a planet tether only (field.kind is uniform)");
@@ -316,9 +321,9 @@ void read_events(Keys& k, const Scenario& s, double length_m, EnvironmentSpec& e
   }
 }
 
-/// Altitude of a node in the reference geometry [m] (the bench: distance from node 0).
+/// Altitude of a node in the as-built geometry [m] (the bench: distance from node 0).
 double reference_altitude(const TetherModel& m, std::size_t node) {
-  const Eigen::Vector3d r = m.mesh.position.col(static_cast<Eigen::Index>(node));
+  const Eigen::Vector3d r = m.mesh.as_built_position.col(static_cast<Eigen::Index>(node));
   return m.reference_radius_m > 0.0 ? r.norm() - m.reference_radius_m : r.x();
 }
 
@@ -392,6 +397,23 @@ EnvironmentSpec read_environment(const ScenarioValues& v, const Scenario& s, dou
   read_tides(k, s, env);
   read_events(k, s, length_m, env);
   return env;
+}
+
+std::shared_ptr<const AerodynamicDrag> mean_wind_drag(const Scenario& sc, const TetherModel& m) {
+  const EnvironmentSpec& env = sc.environment;
+  if (!env.any_air()) return nullptr;
+  std::vector<WindProfile> winds;
+  for (const WindSpec& w : env.winds)
+    if (w.profile.active(0.0)) winds.push_back(w.profile);
+  if (winds.empty()) return nullptr;
+  const AltitudeFrame frame =
+      sc.field.uniform ? AltitudeFrame::bench() : AltitudeFrame::planet(m.reference_radius_m);
+  auto wind = std::make_shared<const WindField>(frame, std::move(winds), GustSet(), nullptr, 0.0);
+  const AirDensity air = env.atmosphere == AtmosphereKind::us1976
+                             ? AirDensity::us1976()
+                             : AirDensity::uniform(env.air_density_kg_m3);
+  return std::make_shared<const AerodynamicDrag>(sections(sc, m), env.drag_coefficient, air,
+                                                 wind);
 }
 
 void add_environment(const Scenario& sc, TetherModel& m) {

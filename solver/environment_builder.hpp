@@ -17,8 +17,10 @@
 //  - Cuts by altitude cut the element spanning it in the reference geometry; strikes by
 //    altitude hit the nearest free node; an impulse becomes delta_v = J / m_node.
 //  - Turbulence is generated for the whole simulation (plus a margin) at build time.
+#include <memory>
 #include <vector>
 
+#include "models/aerodynamic_drag.hpp"
 #include "solver/environment_spec.hpp"
 #include "solver/scenario_values.hpp"
 
@@ -32,6 +34,11 @@ struct TetherModel;
 /// length. Problems are appended with their locations.
 EnvironmentSpec read_environment(const ScenarioValues& v, const Scenario& s, double length_m,
                                  std::vector<Problem>& problems);
+
+/// The drag of the mean wind alone (the wind profiles blowing at t = 0; no gusts, no
+/// turbulence), the wind load of the static state; null when no wind blows at t = 0.
+std::shared_ptr<const AerodynamicDrag> mean_wind_drag(const Scenario& scenario,
+                                                      const TetherModel& model);
 
 /// Adds drag (when there is air), tides, cuts and strikes of `scenario.environment` to `model`
 /// (whose mesh and bars are built); read_environment() has validated everything it uses.

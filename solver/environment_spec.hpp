@@ -57,6 +57,7 @@ struct TideBodySpec {
 
 struct TidesSpec {
   TideBodySpec moon, sun;
+  bool in_static_state = false;  // load the starting static state with the tides at t = 0
   std::string where;
 };
 

@@ -32,6 +32,7 @@ Equilibrium solve_equilibrium(const Mesh& mesh, double e_pa, double pretension_n
     eq.l0_m[e] = l / (1.0 + eq.tension_n[e] / (e_pa * mesh.element_area[e]));
     eq.s0_m[e + 1] = eq.s0_m[e] + eq.l0_m[e];
   }
+  eq.as_built_tension_n = eq.tension_n;
   return eq;
 }
 

@@ -17,13 +17,22 @@
 namespace hawser {
 
 struct Equilibrium {
-  std::vector<double> tension_n;  // (N) [N]
-  std::vector<double> l0_m;       // (N) unstretched lengths [m]
+  std::vector<double> tension_n;  // (N) [N] in the static state runs start from (Mesh::position)
+  std::vector<double> as_built_tension_n;  // (N) [N] of the unloaded design
+                                           // (Mesh::as_built_position)
+  std::vector<double> l0_m;       // (N) unstretched lengths [m]: the as-built tether
   std::vector<double> s0_m;       // (N+1) unstretched arc length from node 0 [m]
+  // The static state (solver/static_solver.hpp): what loads it, and what solving it took.
+  std::string load_case = "no load";
+  int newton_iterations = 0;
+  int load_steps = 0;
+  double residual_n = 0.0;        // final |R|_inf [N]
+  double fold_load_factor = 1.0;  // < 1: the continuation from the as-built state stopped there
+  int relax_iterations = 0;       // pseudo-transient steps from there to the state
 };
 
-/// `body` are the force models other than the bars, evaluated at rest on the reference
-/// geometry. Throws InputError if some element would have to push (no tension equilibrium).
+/// The as-built tether: tension_n = as_built_tension_n. `body` are the force models other
+/// than the bars, evaluated at rest on the reference geometry. Throws InputError if some element would have to push (no tension equilibrium).
 Equilibrium solve_equilibrium(const Mesh& mesh, double youngs_modulus_pa, double pretension_n,
                               const std::vector<const ForceModel*>& body);
 

@@ -7,7 +7,8 @@ namespace hawser {
 
 std::vector<double> reference_distance(const Mesh& mesh) {
   std::vector<double> d(mesh.nodes());
-  for (std::size_t k = 0; k < mesh.nodes(); ++k) d[k] = (mesh.position.col(k) - mesh.position.col(0)).norm();
+  const Matrix3X& x = mesh.as_built_position;
+  for (std::size_t k = 0; k < mesh.nodes(); ++k) d[k] = (x.col(k) - x.col(0)).norm();
   return d;
 }
 

@@ -8,7 +8,7 @@
 
 namespace hawser {
 
-/// Distance of each node from node 0 along the reference (stretched) geometry [m].
+/// Distance of each node from node 0 along the as-built (unloaded, stretched) geometry [m].
 std::vector<double> reference_distance(const Mesh& mesh);
 
 std::vector<double> initial_state(const TetherSystem& system, const InitialSpec& spec);

@@ -51,7 +51,9 @@ Mesh build_planet_mesh(const TetherDesign& design, const MeshSpec& spec) {
     m.node_mass[e + 1] += 0.5 * m.element_mass.back();
   }
   m.counterweight_mass = design.counterweight_mass();
+  m.as_built_counterweight_kg = design.counterweight_mass();
   m.node_mass[n] += m.counterweight_mass;
+  m.as_built_position = m.position;
   return m;
 }
 
@@ -69,6 +71,7 @@ Mesh build_bench_mesh(const Material& material, const FieldSpec& field, const Me
     m.node_mass[e + 1] += 0.5 * m.element_mass.back();
   }
   m.far_end_fixed = field.far_end_fixed;
+  m.as_built_position = m.position;
   return m;
 }
 

@@ -20,11 +20,13 @@ struct FieldSpec;
 struct Material;
 
 struct Mesh {
-  Matrix3X position;                  // (3, N+1) reference (equilibrium) positions [m]
+  Matrix3X position;                  // (3, N+1) the static state runs and modes start from [m]
+  Matrix3X as_built_position;         // (3, N+1) the unloaded design geometry (straight) [m]
   Eigen::VectorXd node_mass;          // (N+1) [kg], counterweight included at node N
   std::vector<double> element_area;   // (N) [m^2]
   std::vector<double> element_mass;   // (N) [kg]
-  double counterweight_mass = 0.0;    // [kg]
+  double counterweight_mass = 0.0;    // [kg] hung at node N (the scenario's, given or computed)
+  double as_built_counterweight_kg = 0.0;  // [kg] the design's, which the L0 were built for
   Eigen::Vector3d axis = Eigen::Vector3d::UnitX();  // direction from node 0 to node N
   bool far_end_fixed = false;         // node N held (test bench only)
   std::size_t elements() const { return element_area.size(); }

@@ -18,6 +18,7 @@
 #include <sstream>
 #include <stdexcept>
 
+#include "solver/differenced_jacobian.hpp"
 #include "solver/errors.hpp"
 #include "solver/tether_system.hpp"
 
@@ -43,7 +44,7 @@ LinearisedTether linearise(const TetherModel& model) {
   const Matrix3X rest = Matrix3X::Zero(3, nodes);
   const TetherState s{0.0, model.mesh.position, rest, model.mesh.node_mass};
   NodeJacobian jac(nodes);
-  for (const ForceModel* f : model.forces()) f->add_jacobian(s, jac);
+  add_complete_jacobian(model.mean_forces(), s, first, last, jac);  // the drag's dF/dx differenced
 
   std::vector<Eigen::Triplet<double>> k_entries, c_entries, m_entries;
   // Climbers where they are at t = 0 add m w w^T per axis, w = (1 - xi, xi) on their element's

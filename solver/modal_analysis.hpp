@@ -49,12 +49,11 @@ class TetherSystem;
 
 /// The linearised tether on the free nodes; dof 3 (k - first_free) + a is axis a of node k.
 ///
-/// Linearised about the static equilibrium (mesh.position at rest), which holds the climbers
-/// parked at their start points; the climbers where they are at t = 0 add their consistent
-/// mass m w w^T per axis (physics.md section 5) to M, which is why M is kept sparse rather
-/// than as a diagonal. Seam, NOT implemented: a steady wind would move the point of
-/// linearisation to a new static equilibrium under its drag, to be passed here instead of
-/// mesh.position; today drag enters only through its Jacobian at the calm equilibrium.
+/// Linearised about the loaded static state (mesh.position at rest, TetherModel::mean_forces():
+/// the as-built tether with the climbers parked at their start points, the counterweight and
+/// the mean wind's drag, which adds its aerodynamic damping; gusts and turbulence left out);
+/// the climbers where they are at t = 0 add their consistent mass m w w^T per axis
+/// (physics.md section 5) to M, which is why M is kept sparse rather than as a diagonal.
 struct LinearisedTether {
   std::size_t first_free = 0, last_free = 0;
   Eigen::SparseMatrix<double> mass;         // M [kg]

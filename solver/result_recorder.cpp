@@ -164,6 +164,19 @@ void ResultRecorder::write_fixed(const Scenario& sc, const TetherModel& model) {
   // Eigen stores (3, N+1) column-major: that is (N+1, 3) row-major, as the contract wants.
   file_.write_array("/equilibrium/position", {nn, 3}, model.mesh.position.data(), "m");
   file_.write_array("/equilibrium/tension", {n}, model.equilibrium.tension_n.data(), "N");
+  // The static state above is the as-built tether under the load case named here;
+  // /mesh keeps the as-built (unloaded) geometry and tensions the L0 were made for.
+  file_.set_attribute("/equilibrium", "load_case", model.equilibrium.load_case);
+  file_.set_attribute("/equilibrium", "newton_iterations", model.equilibrium.newton_iterations);
+  file_.set_attribute("/equilibrium", "load_steps", model.equilibrium.load_steps);
+  file_.set_attribute("/equilibrium", "residual_N", model.equilibrium.residual_n);
+  file_.set_attribute("/equilibrium", "fold_load_factor", model.equilibrium.fold_load_factor);
+  file_.set_attribute("/equilibrium", "relax_iterations", model.equilibrium.relax_iterations);
+  file_.write_array("/mesh/as_built_position", {nn, 3}, model.mesh.as_built_position.data(), "m");
+  file_.write_array("/mesh/as_built_tension", {n}, model.equilibrium.as_built_tension_n.data(),
+                    "N");
+  file_.set_attribute("/mesh", "as_built_counterweight_mass_kg",
+                      model.mesh.as_built_counterweight_kg);
   std::vector<long long> idx(nodes_.begin(), nodes_.end());
   file_.write_array("/nodes/index", {k}, idx.data(), "1");
   // Output nodes joined in order, for viewers (the .xmf's polyline topology).

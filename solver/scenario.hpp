@@ -76,6 +76,19 @@ struct OutputSpec {
   int deflate_level = 0;           // 0: no compression; else shuffle + deflate at this level
 };
 
+/// A static load case of `hawser design` (load_cases[] in config/scenario_keys.yaml).
+struct LoadCaseSpec {
+  struct Parked {
+    double mass_kg = 0.0;
+    double altitude_m = 0.0;  // along the as-built tether at rest, from the anchor
+  };
+  std::string name;
+  std::vector<Parked> climbers;
+  double counterweight_change = 0.0;  // relative to the design's computed mass [-]
+  bool mean_wind = false;
+  bool tides = false;                 // the tides at t = 0
+};
+
 struct Scenario {
   std::string name;
   std::string file;          // as given on the command line
@@ -92,6 +105,9 @@ struct Scenario {
   InitialSpec initial;
   OutputSpec output;
   EnvironmentSpec environment;  // air, wind, tides, cuts, strikes (solver/environment_builder.hpp)
+  std::vector<LoadCaseSpec> load_cases;  // the load-case table of `hawser design`
+  int built_under = -1;                  // load case the tether is built under; -1: unloaded
+  double min_base_margin = 0.0;          // warn below this base-tension margin [-]
   ScenarioValues values;     // everything as validated, with locations
 };
 

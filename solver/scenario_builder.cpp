@@ -103,6 +103,53 @@ void build_initial_and_output(const ScenarioValues& v, double length_m, int elem
   s.environment = read_environment(v, s, length_m, problems);  // environment.*, events.* (issue 5)
 }
 
+/// load_cases[] and load_case_checks (planet tether; `length_m` is the tether's).
+void build_load_cases(const ScenarioValues& v, double length_m, Scenario& s,
+                      std::vector<Problem>& problems) {
+  s.min_base_margin = v.quantity("load_case_checks.min_base_margin");
+  const long long n = v.has("load_cases") ? v.integer("load_cases") : 0;
+  bool wind_at_start = false;
+  for (const WindSpec& w : s.environment.winds)
+    wind_at_start = wind_at_start || w.profile.active(0.0);
+  for (long long i = 0; i < n; ++i) {
+    const std::string p = "load_cases[" + std::to_string(i) + "]";
+    LoadCaseSpec c;
+    c.name = v.text(p + ".name");
+    c.counterweight_change = v.quantity(p + ".counterweight_change");
+    c.mean_wind = v.boolean(p + ".mean_wind");
+    c.tides = v.boolean(p + ".tides");
+    if (c.tides && !s.environment.tides.moon.on && !s.environment.tides.sun.on)
+      problems.push_back(
+          {v.where(p + ".tides"), p + ".tides", "no tides in the scenario (environment.tides)"});
+    if (c.mean_wind && !wind_at_start)
+      problems.push_back({v.where(p + ".mean_wind"), p + ".mean_wind",
+                          "no mean wind blows at t = 0 (environment.winds with an atmosphere)"});
+    const long long nc = v.has(p + ".climbers") ? v.integer(p + ".climbers") : 0;
+    for (long long j = 0; j < nc; ++j) {
+      const std::string q = p + ".climbers[" + std::to_string(j) + "]";
+      LoadCaseSpec::Parked pk{v.quantity(q + ".mass"), v.quantity(q + ".altitude")};
+      if (pk.altitude_m > length_m)
+        problems.push_back({v.where(q + ".altitude"), q + ".altitude",
+                            "beyond the top of the tether (" +
+                                std::to_string(length_m / 1e3) + " km)"});
+      c.climbers.push_back(pk);
+    }
+    s.load_cases.push_back(c);
+  }
+  if (!v.has("tether.built_under")) return;
+  const std::string name = v.text("tether.built_under");
+  for (std::size_t i = 0; i < s.load_cases.size(); ++i)
+    if (s.load_cases[i].name == name) s.built_under = static_cast<int>(i);
+  if (s.built_under < 0) {
+    problems.push_back({v.where("tether.built_under"), "tether.built_under",
+                        "no load case named '" + name + "' in load_cases"});
+  } else if (s.load_cases[s.built_under].mean_wind || s.load_cases[s.built_under].tides) {
+    problems.push_back({v.where("tether.built_under"), "tether.built_under",
+                        "a tether is built along its straight design line: the case may hold "
+                        "parked climbers and a counterweight change, not wind or tides"});
+  }
+}
+
 Scenario build(const ReadScenario& read, const std::string& file) {
   const ScenarioValues& v = read.values;
   std::vector<Problem> problems;
@@ -130,6 +177,9 @@ Scenario build(const ReadScenario& read, const std::string& file) {
       problems.push_back({v.where("mesh.first_element_length"), "mesh.first_element_length",
                           "geometric grading must grow toward the far end: N times the first length exceeds the cable length"});
     build_initial_and_output(v, s.field.cable_length_m, s.mesh.elements, s.field.far_end_fixed, s, problems);
+    if (v.has("load_cases") && v.integer("load_cases") > 0)
+      problems.push_back({v.where("load_cases"), "load_cases",
+                          "static load cases are for a planet tether only"});
     if (!problems.empty()) throw InputError(format_problems(problems));
     return s;
   }
@@ -167,6 +217,7 @@ Scenario build(const ReadScenario& read, const std::string& file) {
     problems.push_back({v.where("mesh.first_element_length"), "mesh.first_element_length",
                         "geometric grading must grow toward the top: N times the first length exceeds the tether length"});
   build_initial_and_output(v, design.top_radius() - design.base_radius(), s.mesh.elements, false, s, problems);
+  build_load_cases(v, design.top_radius() - design.base_radius(), s, problems);
   if (!problems.empty()) throw InputError(format_problems(problems));
   return s;
 }

@@ -18,6 +18,7 @@ Run by ctest as: python3 test_climbers_cli.py --hawser BIN --source DIR
 """
 import math
 import os
+import re
 import subprocess
 import sys
 import tempfile
@@ -64,6 +65,13 @@ climbers:
     deceleration: 0.2 m/s^2
 """
 MASSES = {"wren": 2000.0, "petrel": 3000.0}
+# Speeds are along the unstretched ribbon (config/scenario_keys.yaml, climbers): the leg from
+# 100 to 600 km at rest is 500 km / (1 + sigma_d / E) unstretched, the constant-stress taper
+# holding sigma_d = 100 GPa / 2 everywhere at rest (Pearson 1975; kestrel_k100's invented
+# values, config/materials.yaml, E = 900 GPa). Ramps a = 0.01, d = 0.5 m/s^2 reach at most
+# sqrt(2 L a d / (a + d)) (kinematics): 96.37 m/s = 346.9 km/h. (0.5 % allowed: the mesh's
+# lumped tensions are not exactly the design's at its coarse lowest elements.)
+REACHABLE_KM_H = math.sqrt(2 * 500e3 / (1 + 50e9 / 900e9) * 0.01 * 0.5 / 0.51) * 3.6
 DIRECTION = {"wren": +1, "petrel": -1}
 
 SCHEDULE = """\
@@ -133,11 +141,12 @@ def main():
              line_of(BASE, "mass: 2 t"), "climbers[0].mass", ["greater than 0"]),
             ("negative mass", mutate(BASE, "mass: 3 t", "mass: -3 t"),
              line_of(BASE, "mass: 3 t"), "climbers[1].mass", ["greater than 0"]),
-            # 500 km at a = 0.01, d = 0.5 m/s^2: sqrt(2 L a d / (a + d)) = 99.02 m/s = 356.5 km/h.
+            # The fastest reachable speed is checked below (REACHABLE_KM_H).
             ("cruise speed never reached",
              mutate(mutate(BASE, "cruise_speed: 200 km/h", "cruise_speed: 2000 km/h"),
                     "acceleration: 0.5 m/s^2", "acceleration: 0.01 m/s^2"),
-             line_of(BASE, "name: wren"), "climbers[0]", ["never reached", "356.5 km/h"]),
+             line_of(BASE, "name: wren"), "climbers[0]",
+             ["never reached", "fastest reachable speed"]),
             # wren rises to 800 km while petrel comes down from 900 km to 700 km: they meet.
             ("overlapping climbers", mutate(BASE, "to: 600 km", "to: 800 km"),
              line_of(BASE, "name: petrel"), "climbers[1]", ["wren", "petrel", "same stretch"]),
@@ -159,6 +168,12 @@ def main():
             c.check(bool(hits), f"{name}: message names {loc} and {key}", p.stderr.strip())
             c.check(not p.stdout.strip(), f"{name}: nothing on stdout", p.stdout[:200])
             c.check(not os.path.exists(out), f"{name}: no result file")
+            if name == "cruise speed never reached":
+                m = re.search(r"fastest reachable speed there is ([0-9.]+) km/h", p.stderr)
+                got = float(m.group(1)) if m else float("nan")
+                c.check(abs(got / REACHABLE_KM_H - 1) < 5e-3,
+                        f"{name}: the fastest reachable speed",
+                        f"{got} km/h against {REACHABLE_KM_H:.1f} km/h")
             # `hawser check` validates only; architecture.md: it reports every problem too.
             q = hawser("check", path)
             c.check(q.returncode == 2, f"{name}: `hawser check` exits 2", f"got {q.returncode}: {q.stdout.strip()}")

@@ -230,7 +230,8 @@ TEST_CASE("drag on a planet node: density of the 1976 standard and the wind's EN
   REQUIRE(drag);
   CHECK(drag->drag_coefficient() == 2.0);  // ribbon: flat plate broadside (Hoerner, recalled from memory)
   const Matrix3X rest = Matrix3X::Zero(3, model.nodes());
-  const TetherState s{10.0, model.mesh.position, rest, model.mesh.node_mass};
+  // Evaluated on the upright as-built line (the static state leans in this wind).
+  const TetherState s{10.0, model.mesh.as_built_position, rest, model.mesh.node_mass};
   const std::vector<std::size_t> nodes{0, 1, 40};
   const auto fields = drag->output_fields(nodes);
   REQUIRE(fields.size() == 4);
@@ -254,9 +255,9 @@ TEST_CASE("drag on a planet node: density of the 1976 standard and the wind's EN
   const TetherModel fm = build_model(fine);
   const AerodynamicDrag* fd = find_model<AerodynamicDrag>(fm);
   const Matrix3X frest = Matrix3X::Zero(3, fm.nodes());
-  const TetherState fs{10.0, fm.mesh.position, frest, fm.mesh.node_mass};
+  const TetherState fs{10.0, fm.mesh.as_built_position, frest, fm.mesh.node_mass};
   const Eigen::Vector3d f0 = fd->element_force(fs, 0);
-  const double l = fm.mesh.position(0, 1) - fm.mesh.position(0, 0);
+  const double l = fm.mesh.as_built_position(0, 1) - fm.mesh.as_built_position(0, 0);
   const double rho500 = StandardAtmosphere1976().at(0.5 * l).density_kg_m3;
   const double width = fd->section(0).width_m;
   CHECK(width == Approx(std::sqrt(fm.mesh.element_area[0] * 1000.0)));  // w t = A, w / t = 1000
