@@ -92,10 +92,20 @@ T read_number_attribute(hid_t file, const std::string& object, const std::string
   return value;
 }
 
+// Counted by iterating (H5Aiterate2 is the same in HDF5 1.10 and 1.14; H5Oget_info_by_name
+// changed its signature in 1.12).
+herr_t count_one(hid_t, const char*, const H5A_info_t*, void* count) {
+  ++*static_cast<int*>(count);
+  return 0;
+}
+
 int attribute_count(hid_t file, const std::string& object) {
-  H5O_info_t info;
-  h5check(H5Oget_info_by_name(file, object.c_str(), &info, H5P_DEFAULT), "H5Oget_info_by_name");
-  return static_cast<int>(info.num_attrs);
+  const hawser::H5ObjectId o{h5check(H5Oopen(file, object.c_str(), H5P_DEFAULT), "H5Oopen")};
+  int count = 0;
+  hsize_t index = 0;
+  h5check(H5Aiterate2(o.get(), H5_INDEX_NAME, H5_ITER_NATIVE, &index, count_one, &count),
+          "H5Aiterate2");
+  return count;
 }
 
 }  // namespace
