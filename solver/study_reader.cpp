@@ -15,6 +15,7 @@
 #include "solver/key_reference.hpp"
 #include "solver/scenario.hpp"
 #include "solver/scenario_reader.hpp"
+#include "solver/tether_model.hpp"
 #include "solver/variant_id.hpp"
 
 namespace hawser {
@@ -276,11 +277,12 @@ void read_ranking(const YAML::Node& root, Study& st, StudyWalker& w) {
   }
 }
 
-/// Validates a variant as `hawser run BASE --set ...` would, and rewrites each "--set p=v"
+/// Validates a variant as `hawser check BASE --set ...` would (the keys, then the model: a
+/// climber beyond the tether's top is found here, not in the run), and rewrites each "--set p=v"
 /// location in the messages to where the study wrote the value.
 void validate_variant(const Study& st, const Variant& v, std::vector<std::string>& lines) {
   try {
-    load_scenario(st.scenario, st.set_arguments(v));
+    build_model(load_scenario(st.scenario, st.set_arguments(v)));
   } catch (const InputError& e) {
     std::string msg = e.what();
     std::vector<Override> all = st.common;
