@@ -42,7 +42,8 @@ def numeric(text):
 
 
 def metrics_of(study, columns):
-    wanted = [r["metric"] for r in study.get("rank_by", [])] + [l["metric"] for l in study.get("limits", [])]
+    wanted = [r["metric"] for r in study.get("rank_by", [])]
+    wanted += [lim["metric"] for lim in study.get("limits", [])]
     wanted += STANDARD_METRICS + [c for c in columns if "settling" in c]
     out = []
     for m in wanted:
@@ -91,16 +92,19 @@ def ranking_rows(md_text):
     rows = []
     for line in md_text.splitlines():
         if line.startswith("|") and not line.startswith("|---"):
-            rows.append([c.strip().replace("\\|", "|") for c in re.split(r"(?<!\\)\|", line.strip())[1:-1]])
+            cells = re.split(r"(?<!\\)\|", line.strip())[1:-1]
+            rows.append([c.strip().replace("\\|", "|") for c in cells])
     return rows
 
 
 def build_html(study, table, links, figures):
     head, body = table[0], table[1:]
     vcol = head.index("variant")
-    out = [f"<!DOCTYPE html><html><head><meta charset='utf-8'><title>Sweep {html.escape(study['study'])}</title>",
+    title = html.escape(study["study"])
+    out = [f"<!DOCTYPE html><html><head><meta charset='utf-8'><title>Sweep {title}</title>",
            "<style>body{font-family:sans-serif;margin:2em}table{border-collapse:collapse}"
-           "td,th{border:1px solid #ccc;padding:3px 6px;font-size:90%}.breaks{background:#fde}</style>",
+           "td,th{border:1px solid #ccc;padding:3px 6px;font-size:90%}"
+           ".breaks{background:#fde}</style>",
            f"</head><body><h1>Sweep: {html.escape(study['study'])}</h1>",
            f"<p>{len(body)} variants of <code>{html.escape(study['scenario'])}</code>. "
            f"{html.escape(hawser_report.CAUTION)}</p><h2>Ranking</h2><table><tr>"]
@@ -117,16 +121,19 @@ def build_html(study, table, links, figures):
     out.append("</table><h2>Comparisons</h2>")
     for title, png in figures:
         data = base64.b64encode(png.read_bytes()).decode()
-        out.append(f"<h3>{html.escape(title)}</h3><img alt='{html.escape(title)}' src='data:image/png;base64,{data}'>")
+        t = html.escape(title)
+        out.append(f"<h3>{t}</h3><img alt='{t}' src='data:image/png;base64,{data}'>")
     out.append("</body></html>")
     return "\n".join(out)
 
 
 def main(argv=None):
-    ap = argparse.ArgumentParser(description="Compare the variants of a hawser sweep in one HTML page.")
+    ap = argparse.ArgumentParser(
+        description="Compare the variants of a hawser sweep in one HTML page.")
     ap.add_argument("sweep", help="the sweep folder (hawser sweep -o DIR)")
     ap.add_argument("-o", "--outdir", help="output folder (default: SWEEP/report)")
-    ap.add_argument("--no-variant-reports", action="store_true", help="do not make each variant's own report")
+    ap.add_argument("--no-variant-reports", action="store_true",
+                    help="do not make each variant's own report")
     args = ap.parse_args(argv)
     sweep = Path(args.sweep)
     try:
@@ -135,7 +142,8 @@ def main(argv=None):
             rows = list(csv.DictReader(f))
         table = ranking_rows((sweep / "ranking.md").read_text())
     except (OSError, ValueError) as exc:
-        print(f"hawser_sweep_report: error: {sweep} is not a finished sweep folder ({exc})", file=sys.stderr)
+        print(f"hawser_sweep_report: error: {sweep} is not a finished sweep folder ({exc})",
+              file=sys.stderr)
         return 2
     outdir = Path(args.outdir) if args.outdir else sweep / "report"
     outdir.mkdir(parents=True, exist_ok=True)

@@ -19,7 +19,9 @@ namespace {
 
 namespace fs = std::filesystem;
 
-std::string default_folder(const std::string& study) { return fs::path(study).stem().string() + "-sweep"; }
+std::string default_folder(const std::string& study) {
+  return fs::path(study).stem().string() + "-sweep";
+}
 
 /// summary.csv and ranking.md from the folder; prints the ranking. True if every variant
 /// has a final result.
@@ -28,7 +30,8 @@ bool write_tables(const Study& st, const SweepFolder& folder) {
   write_file_atomically(folder.dir() + "/summary.csv", summary_csv(st, rows));
   const std::string md = ranking_markdown(st, rows);
   write_file_atomically(folder.dir() + "/ranking.md", md);
-  std::cout << md << "\ntables: " << folder.dir() << "/summary.csv, " << folder.dir() << "/ranking.md\n";
+  std::cout << md << "\ntables: " << folder.dir() << "/summary.csv, " << folder.dir()
+            << "/ranking.md\n";
   bool all = true;
   std::size_t missing = 0;
   for (const SweepRow& r : rows)
@@ -48,8 +51,9 @@ int run_slurm(const Study& st, const SweepFolder& folder, const SweepOptions& op
   }
   const std::string program = fs::read_symlink("/proc/self/exe").string();
   const std::string job = "hawser-" + short_hash(st.file + st.fingerprint);
-  const std::string script = sbatch_script(job, todo, program, fs::absolute(opt.study).lexically_normal().string(),
-                                           fs::absolute(folder.dir()).lexically_normal().string(), opt.slurm_options);
+  const std::string script =
+      sbatch_script(job, todo, program, fs::absolute(opt.study).lexically_normal().string(),
+                    fs::absolute(folder.dir()).lexically_normal().string(), opt.slurm_options);
   const std::string path = folder.dir() + "/sweep.sbatch";
   write_file_atomically(path, script);
   if (opt.dry_run) {
@@ -59,10 +63,12 @@ int run_slurm(const Study& st, const SweepFolder& folder, const SweepOptions& op
   try {
     const std::string id = submit_sbatch(path);
     std::cout << "submitted job array " << id << " (" << todo.size() << " variants): " << path
-              << "\nwhen it is done: hawser sweep " << opt.study << " --collect -o " << folder.dir() << "\n";
+              << "\nwhen it is done: hawser sweep " << opt.study << " --collect -o " << folder.dir()
+              << "\n";
     return 0;
   } catch (const std::runtime_error& e) {
-    std::cerr << "error: " << e.what() << "; the script is " << path << " (submit it yourself, or use --dry-run)\n";
+    std::cerr << "error: " << e.what() << "; the script is " << path
+              << " (submit it yourself, or use --dry-run)\n";
     return 1;
   }
 }
@@ -71,7 +77,9 @@ int run_slurm(const Study& st, const SweepFolder& folder, const SweepOptions& op
 
 int cmd_sweep(const SweepOptions& opt) {
   if (opt.dry_run && !opt.slurm) throw InputError("error: --dry-run goes with --slurm\n");
-  if (static_cast<int>(opt.slurm) + static_cast<int>(opt.collect) + static_cast<int>(opt.variant >= 0) > 1)
+  if (static_cast<int>(opt.slurm) + static_cast<int>(opt.collect) +
+          static_cast<int>(opt.variant >= 0) >
+      1)
     throw InputError("error: give one of --slurm, --collect and --variant\n");
   const Study st = read_study(opt.study);
   const SweepFolder folder(opt.output.empty() ? default_folder(opt.study) : opt.output);
@@ -91,14 +99,18 @@ int cmd_sweep(const SweepOptions& opt) {
     const Variant& v = st.variants[static_cast<std::size_t>(opt.variant)];
     const PoolResult r = run_variants(st, {&v}, folder, 1, false);
     std::cout << "variant " << v.index << " " << v.id << ": "
-              << (r.started ? "exit " + std::to_string(r.last_exit_code) : std::string("already finished")) << "\n";
+              << (r.started ? "exit " + std::to_string(r.last_exit_code)
+                            : std::string("already finished"))
+              << "\n";
     return r.last_exit_code;
   }
-  const int jobs = opt.jobs > 0 ? opt.jobs : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  const int jobs =
+      opt.jobs > 0 ? opt.jobs : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   std::vector<const Variant*> all;
   for (const Variant& v : st.variants) all.push_back(&v);
-  std::cout << "sweep " << st.name << ": " << st.variants.size() << " variants, " << jobs << " at once, in "
-            << folder.dir() << "\n" << std::flush;
+  std::cout << "sweep " << st.name << ": " << st.variants.size() << " variants, " << jobs
+            << " at once, in " << folder.dir() << "\n"
+            << std::flush;
   const PoolResult r = run_variants(st, all, folder, jobs, stderr_is_terminal());
   std::cout << r.started << " runs started, " << r.failed << " failed\n";
   return write_tables(st, folder) ? 0 : 1;

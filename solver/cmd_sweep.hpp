@@ -10,12 +10,12 @@ namespace hawser {
 
 struct SweepOptions {
   std::string study;
-  std::string output;   // the sweep folder; empty: <study name>-sweep in the current directory
-  int jobs = 0;         // local processes at once; 0: every core
-  long variant = -1;    // >= 0: run only this variant (a Slurm array task)
-  bool slurm = false;   // write and submit the job array
-  bool dry_run = false; // with slurm: print the script instead of submitting it
-  bool collect = false; // build the tables from the folder only
+  std::string output;    // the sweep folder; empty: <study name>-sweep in the current directory
+  int jobs = 0;          // local processes at once; 0: every core
+  long variant = -1;     // >= 0: run only this variant (a Slurm array task)
+  bool slurm = false;    // write and submit the job array
+  bool dry_run = false;  // with slurm: print the script instead of submitting it
+  bool collect = false;  // build the tables from the folder only
   SlurmOptions slurm_options;
 };
 

@@ -45,18 +45,24 @@ int main(int argc, char** argv) {
 
   // Sweeps: many variants of one scenario (solver/cmd_sweep.hpp).
   SweepOptions sw;
-  CLI::App* sweep = app.add_subcommand("sweep", "run the variants of a study (YAML) on the local cores or as a Slurm job "
-                                                "array; summary.csv and a ranking");
+  CLI::App* sweep = app.add_subcommand(
+      "sweep", "run the variants of a study (YAML) on the local cores or as a Slurm job array; "
+               "summary.csv and a ranking");
   sweep->add_option("STUDY", sw.study, "study file (YAML; see config/study_keys.yaml)")->required();
-  sweep->add_option("-j,--jobs", sw.jobs, "runs at once on this machine (default: every core)")->check(CLI::PositiveNumber);
+  sweep->add_option("-j,--jobs", sw.jobs, "runs at once on this machine (default: every core)")
+      ->check(CLI::PositiveNumber);
   sweep->add_option("-o,--output", sw.output, "sweep folder (default: <study name>-sweep)");
   sweep->add_option("--variant", sw.variant, "run only this variant, by index (a Slurm array task)")
       ->check(CLI::NonNegativeNumber);
-  sweep->add_flag("--collect", sw.collect, "build summary.csv and ranking.md from the folder's finished files");
-  sweep->add_flag("--slurm", sw.slurm, "write the sbatch script of a job array (one task per variant) and submit it");
-  sweep->add_flag("--dry-run", sw.dry_run, "with --slurm: print the script instead of submitting it");
+  sweep->add_flag("--collect", sw.collect,
+                  "build summary.csv and ranking.md from the folder's finished files");
+  sweep->add_flag("--slurm", sw.slurm,
+                  "write the sbatch script of a job array (one task per variant) and submit it");
+  sweep->add_flag("--dry-run", sw.dry_run,
+                  "with --slurm: print the script instead of submitting it");
   sweep->add_option("--partition", sw.slurm_options.partition, "with --slurm: the Slurm partition");
-  sweep->add_option("--time", sw.slurm_options.time, "with --slurm: time limit of each task (e.g. 2:00:00)");
+  sweep->add_option("--time", sw.slurm_options.time,
+                    "with --slurm: time limit of each task (e.g. 2:00:00)");
   sweep->add_option("--mem", sw.slurm_options.mem, "with --slurm: memory of each task (e.g. 4G)");
 
   try {

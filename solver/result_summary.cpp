@@ -33,12 +33,14 @@ herr_t collect_name(hid_t, const char* name, const H5A_info_t*, void* out) {
 }
 
 /// Names and type classes of the attributes of `object`, in name order.
-std::vector<std::pair<std::string, H5T_class_t>> attributes_of(const std::string& path, const std::string& object) {
+std::vector<std::pair<std::string, H5T_class_t>> attributes_of(const std::string& path,
+                                                               const std::string& object) {
   const H5FileId f{h5check(H5Fopen(path.c_str(), H5F_ACC_RDONLY, H5P_DEFAULT), "H5Fopen")};
   const H5ObjectId o{h5check(H5Oopen(f.get(), object.c_str(), H5P_DEFAULT), "H5Oopen")};
   std::vector<std::string> names;
   hsize_t idx = 0;
-  h5check(H5Aiterate2(o.get(), H5_INDEX_NAME, H5_ITER_INC, &idx, &collect_name, &names), "H5Aiterate2");
+  h5check(H5Aiterate2(o.get(), H5_INDEX_NAME, H5_ITER_INC, &idx, &collect_name, &names),
+          "H5Aiterate2");
   std::vector<std::pair<std::string, H5T_class_t>> out;
   for (const std::string& name : names) {
     const H5AttributeId a{h5check(H5Aopen(o.get(), name.c_str(), H5P_DEFAULT), "H5Aopen")};

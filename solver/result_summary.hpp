@@ -19,7 +19,7 @@ struct SummaryValue {
 };
 
 struct ResultSummary {
-  std::string status;  // "running", "complete", "stopped", "failed"
+  std::string status;                           // "running", "complete", "stopped", "failed"
   std::map<std::string, SummaryValue> summary;  // empty while running
   bool final() const { return status == "complete" || status == "stopped" || status == "failed"; }
   std::optional<double> number(const std::string& metric) const;

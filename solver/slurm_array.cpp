@@ -14,7 +14,8 @@ std::string array_ranges(const std::vector<std::size_t>& ix) {
   for (std::size_t i = 0; i < ix.size();) {
     std::size_t j = i;
     while (j + 1 < ix.size() && ix[j + 1] == ix[j] + 1) ++j;
-    out += (out.empty() ? "" : ",") + std::to_string(ix[i]) + (j > i ? "-" + std::to_string(ix[j]) : "");
+    out += (out.empty() ? "" : ",") + std::to_string(ix[i]) +
+           (j > i ? "-" + std::to_string(ix[j]) : "");
     i = j + 1;
   }
   return out;
@@ -29,13 +30,16 @@ std::string quoted(const std::string& s) {  // one word for the shell
 }  // namespace
 
 std::string sbatch_script(const std::string& job_name, const std::vector<std::size_t>& indices,
-                          const std::string& program, const std::string& study, const std::string& dir,
-                          const SlurmOptions& opt) {
+                          const std::string& program, const std::string& study,
+                          const std::string& dir, const SlurmOptions& opt) {
   std::ostringstream s;
   s << "#!/bin/bash\n"
-    << "# A hawser sweep as a Slurm job array: one task per variant (written by hawser sweep --slurm).\n"
-    << "# Each task runs one variant in its own `hawser run`; resubmitting runs only what is unfinished.\n"
-    << "# When the array is done: hawser sweep " << quoted(study) << " --collect -o " << quoted(dir) << "\n"
+    << "# A hawser sweep as a Slurm job array: one task per variant (written by hawser sweep "
+       "--slurm).\n"
+    << "# Each task runs one variant in its own `hawser run`; resubmitting runs only what is "
+       "unfinished.\n"
+    << "# When the array is done: hawser sweep " << quoted(study) << " --collect -o " << quoted(dir)
+    << "\n"
     << "#SBATCH --job-name=" << job_name << "\n"
     << "#SBATCH --array=" << array_ranges(indices) << "\n"
     << "#SBATCH --ntasks=1\n"
@@ -44,8 +48,8 @@ std::string sbatch_script(const std::string& job_name, const std::vector<std::si
   if (!opt.partition.empty()) s << "#SBATCH --partition=" << opt.partition << "\n";
   if (!opt.time.empty()) s << "#SBATCH --time=" << opt.time << "\n";
   if (!opt.mem.empty()) s << "#SBATCH --mem=" << opt.mem << "\n";
-  s << "exec " << quoted(program) << " sweep " << quoted(study) << " --variant \"$SLURM_ARRAY_TASK_ID\" -o "
-    << quoted(dir) << "\n";
+  s << "exec " << quoted(program) << " sweep " << quoted(study)
+    << " --variant \"$SLURM_ARRAY_TASK_ID\" -o " << quoted(dir) << "\n";
   return s.str();
 }
 
@@ -58,7 +62,8 @@ bool sbatch_available() {
 }
 
 std::string submit_sbatch(const std::string& script_path) {
-  if (!sbatch_available()) throw std::runtime_error("sbatch is not on PATH (is this a Slurm cluster's login node?)");
+  if (!sbatch_available())
+    throw std::runtime_error("sbatch is not on PATH (is this a Slurm cluster's login node?)");
   const std::string cmd = "sbatch --parsable " + quoted(script_path) + " 2>&1";
   FILE* p = popen(cmd.c_str(), "r");
   if (!p) throw std::runtime_error("cannot start sbatch");

@@ -18,8 +18,8 @@ std::string array_ranges(const std::vector<std::size_t>& indices);
 
 /// The script's text. `program`, `study` and `dir` should be absolute paths.
 std::string sbatch_script(const std::string& job_name, const std::vector<std::size_t>& indices,
-                          const std::string& program, const std::string& study, const std::string& dir,
-                          const SlurmOptions& opt);
+                          const std::string& program, const std::string& study,
+                          const std::string& dir, const SlurmOptions& opt);
 
 /// Submits `script_path` with `sbatch --parsable`; returns the job id. Throws std::runtime_error
 /// with sbatch's own message if it is missing or refuses.

@@ -53,11 +53,13 @@ struct Axis {
 
 class StudyWalker {
  public:
-  StudyWalker(std::string file, std::vector<Problem>& problems) : file_(std::move(file)), problems_(problems) {}
+  StudyWalker(std::string file, std::vector<Problem>& problems)
+      : file_(std::move(file)), problems_(problems) {}
 
   std::string at(const YAML::Node& n) const {
     if (n.Mark().is_null()) return file_;
-    return file_ + ":" + std::to_string(n.Mark().line + 1) + ":" + std::to_string(n.Mark().column + 1);
+    return file_ + ":" + std::to_string(n.Mark().line + 1) + ":" +
+           std::to_string(n.Mark().column + 1);
   }
   void problem(const std::string& where, const std::string& key, const std::string& msg) {
     problems_.push_back({where, key.empty() ? "(top level)" : key, msg});
@@ -79,7 +81,8 @@ class StudyWalker {
       const KeySpec* spec = ref.find(p);
       if (!spec) {
         std::string hint;
-        for (const KeySpec* c : ref.children(pattern)) hint += (hint.empty() ? "" : ", ") + c->leaf();
+        for (const KeySpec* c : ref.children(pattern))
+          hint += (hint.empty() ? "" : ", ") + c->leaf();
         problem(at(kv.first), d, "unknown key (expected one of: " + hint + ")");
         continue;
       }
@@ -87,23 +90,29 @@ class StudyWalker {
     }
     for (const KeySpec* c : ref.children(pattern))
       if (c->required && !node[c->leaf()])
-        problem(at(node), display.empty() ? c->leaf() : display + "." + c->leaf(), "missing: " + c->meaning);
+        problem(at(node), display.empty() ? c->leaf() : display + "." + c->leaf(),
+                "missing: " + c->meaning);
   }
 
   void check_value(const KeySpec& spec, const YAML::Node& node, const std::string& display) {
     const KeyReference& ref = study_keys();
     if (spec.type == "list") {
-      if (!node.IsSequence()) return problem(at(node), display, "expected a list (- item per line)");
+      if (!node.IsSequence())
+        return problem(at(node), display, "expected a list (- item per line)");
       for (std::size_t i = 0; i < node.size(); ++i) {
         const std::string d = display + "[" + std::to_string(i) + "]";
         const KeySpec* item = ref.find(spec.path + "[]");
-        if (item && item->type == "map" && ref.children(item->path).empty()) check_overrides(node[i], d, false);
-        else check_map(node[i], spec.path + "[]", d);
+        if (item && item->type == "map" && ref.children(item->path).empty())
+          check_overrides(node[i], d, false);
+        else
+          check_map(node[i], spec.path + "[]", d);
       }
     } else if (spec.type == "map") {
-      if (ref.children(spec.path).empty()) check_overrides(node, display, spec.path == "set" ||
-                                                                          spec.path.find("[].set") != std::string::npos);
-      else check_map(node, spec.path, display);
+      if (ref.children(spec.path).empty())
+        check_overrides(node, display,
+                        spec.path == "set" || spec.path.find("[].set") != std::string::npos);
+      else
+        check_map(node, spec.path, display);
     } else if (!node.IsScalar()) {
       problem(at(node), display, "expected a single value");
     } else if (spec.type == "choice") {
@@ -136,7 +145,8 @@ class StudyWalker {
 
 std::vector<Override> overrides_of(const YAML::Node& map, const StudyWalker& w, bool named) {
   std::vector<Override> out;
-  for (const auto& kv : map) out.push_back({kv.first.Scalar(), flow_text(kv.second), w.at(kv.second), named});
+  for (const auto& kv : map)
+    out.push_back({kv.first.Scalar(), flow_text(kv.second), w.at(kv.second), named});
   return out;
 }
 
@@ -153,13 +163,15 @@ std::vector<Axis> read_axes(const YAML::Node& root, const StudyWalker& w) {
     for (const auto& kv : group)
       for (std::size_t i = 0; i < kv.second.size(); ++i) {
         if (a.choices.size() <= i) a.choices.resize(i + 1);
-        a.choices[i].overrides.push_back({kv.first.Scalar(), flow_text(kv.second[i]), w.at(kv.second[i]), false});
+        a.choices[i].overrides.push_back(
+            {kv.first.Scalar(), flow_text(kv.second[i]), w.at(kv.second[i]), false});
       }
     axes.push_back(a);
   }
   if (get(root, "strategies").size() > 0) {
     Axis a;
-    for (const auto& s : get(root, "strategies")) a.choices.push_back({s["name"].Scalar(), overrides_of(s["set"], w, true)});
+    for (const auto& s : get(root, "strategies"))
+      a.choices.push_back({s["name"].Scalar(), overrides_of(s["set"], w, true)});
     axes.push_back(a);
   }
   return axes;
@@ -172,8 +184,9 @@ void check_structure(const YAML::Node& root, StudyWalker& w) {
     for (const auto& kv : get(root, "zip")[g]) {
       if (n != 0 && kv.second.size() != n)
         w.problem(w.at(kv.second), "zip[" + std::to_string(g) + "]." + kv.first.Scalar(),
-                  "has " + std::to_string(kv.second.size()) + " values; the group's first list has " +
-                      std::to_string(n) + " (zipped lists vary together and must be as long)");
+                  "has " + std::to_string(kv.second.size()) +
+                      " values; the group's first list has " + std::to_string(n) +
+                      " (zipped lists vary together and must be as long)");
       if (n == 0) n = kv.second.size();
     }
   }
@@ -183,8 +196,10 @@ void check_structure(const YAML::Node& root, StudyWalker& w) {
       const YAML::Node n = get(root, list)[i]["name"];
       if (!n || !n.IsScalar()) continue;
       const std::string d = std::string(list) + "[" + std::to_string(i) + "].name";
-      if (n.Scalar().empty() || n.Scalar().find_first_not_of(
-              "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789-_") != std::string::npos)
+      if (n.Scalar().empty() ||
+          n.Scalar().find_first_not_of(
+              "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789-_") !=
+              std::string::npos)
         w.problem(w.at(n), d, "'" + n.Scalar() + "': use letters, digits, - and _ only");
       else if (!names.insert(n.Scalar()).second)
         w.problem(w.at(n), d, "the name '" + n.Scalar() + "' is given twice");
@@ -194,19 +209,23 @@ void check_structure(const YAML::Node& root, StudyWalker& w) {
   auto claim = [&](const std::string& path, const std::string& axis, const YAML::Node& at) {
     const auto it = axis_of.find(path);
     if (it != axis_of.end() && it->second != axis)
-      w.problem(w.at(at), path, "varied by " + it->second + " and by " + axis + " (vary each key on one axis)");
+      w.problem(w.at(at), path,
+                "varied by " + it->second + " and by " + axis + " (vary each key on one axis)");
     else
       axis_of[path] = axis;
   };
   for (const auto& kv : get(root, "set")) claim(kv.first.Scalar(), "set", kv.first);
-  for (const auto& kv : get(root, "product")) claim(kv.first.Scalar(), "product." + kv.first.Scalar(), kv.first);
+  for (const auto& kv : get(root, "product"))
+    claim(kv.first.Scalar(), "product." + kv.first.Scalar(), kv.first);
   for (std::size_t g = 0; g < get(root, "zip").size(); ++g)
-    for (const auto& kv : get(root, "zip")[g]) claim(kv.first.Scalar(), "zip[" + std::to_string(g) + "]", kv.first);
+    for (const auto& kv : get(root, "zip")[g])
+      claim(kv.first.Scalar(), "zip[" + std::to_string(g) + "]", kv.first);
   for (const auto& s : get(root, "strategies"))
     for (const auto& kv : get(s, "set")) claim(kv.first.Scalar(), "strategies", kv.first);
 }
 
-std::vector<Variant> expand(const std::vector<Axis>& axes, const YAML::Node& root, const StudyWalker& w) {
+std::vector<Variant> expand(const std::vector<Axis>& axes, const YAML::Node& root,
+                            const StudyWalker& w) {
   std::vector<Variant> out;
   bool any = !axes.empty();
   for (const Axis& a : axes) any = any && !a.choices.empty();  // an empty list is reported already
@@ -230,7 +249,8 @@ std::vector<Variant> expand(const std::vector<Axis>& axes, const YAML::Node& roo
       }
     }
   }
-  for (const auto& e : get(root, "variants")) out.push_back({0, "", e["name"].Scalar(), overrides_of(e["set"], w, true)});
+  for (const auto& e : get(root, "variants"))
+    out.push_back({0, "", e["name"].Scalar(), overrides_of(e["set"], w, true)});
   if (out.empty()) out.push_back(Variant{});
   for (std::size_t i = 0; i < out.size(); ++i) {
     out[i].index = i;
@@ -241,12 +261,14 @@ std::vector<Variant> expand(const std::vector<Axis>& axes, const YAML::Node& roo
 
 /// The dimension of a /summary metric from its name's unit ending (config/study_keys.yaml).
 std::string metric_dimension(const std::string& metric) {
-  static const YAML::Node table = YAML::Load(embedded_config().at("study_keys.yaml"))["metric_units"];
+  static const YAML::Node table =
+      YAML::Load(embedded_config().at("study_keys.yaml"))["metric_units"];
   std::string best, dim = "dimensionless";
   if (metric.find("_per_") != std::string::npos) return dim;
   for (const auto& kv : table) {
     const std::string suffix = kv.first.Scalar();
-    if (metric.size() > suffix.size() && metric.compare(metric.size() - suffix.size(), suffix.size(), suffix) == 0 &&
+    if (metric.size() > suffix.size() &&
+        metric.compare(metric.size() - suffix.size(), suffix.size(), suffix) == 0 &&
         suffix.size() > best.size()) {
       best = suffix;
       dim = kv.second.Scalar();
@@ -256,7 +278,8 @@ std::string metric_dimension(const std::string& metric) {
 }
 
 void read_ranking(const YAML::Node& root, Study& st, StudyWalker& w) {
-  for (const auto& r : get(root, "rank_by")) st.rank_by.push_back({r["metric"].Scalar(), r["order"].Scalar() == "descending"});
+  for (const auto& r : get(root, "rank_by"))
+    st.rank_by.push_back({r["metric"].Scalar(), r["order"].Scalar() == "descending"});
   for (std::size_t i = 0; i < get(root, "limits").size(); ++i) {
     const YAML::Node l = get(root, "limits")[i];
     const std::string d = "limits[" + std::to_string(i) + "]";
@@ -270,7 +293,8 @@ void read_ranking(const YAML::Node& root, Study& st, StudyWalker& w) {
     Limit lim{metric, least, 0.0, b.Scalar()};
     std::string why;
     if (!UnitTable::builtin().to_si(b.Scalar(), metric_dimension(metric), lim.bound, why)) {
-      w.problem(w.at(b), d + (least ? ".at_least" : ".at_most"), why + " (the unit of " + metric + ")");
+      w.problem(w.at(b), d + (least ? ".at_least" : ".at_most"),
+                why + " (the unit of " + metric + ")");
       continue;
     }
     st.limits.push_back(lim);
@@ -289,12 +313,14 @@ void validate_variant(const Study& st, const Variant& v, std::vector<std::string
     all.insert(all.end(), v.overrides.begin(), v.overrides.end());
     for (const Override& o : all) {
       const std::string from = "--set " + o.set_argument();
-      for (auto pos = msg.find(from); pos != std::string::npos; pos = msg.find(from, pos + o.where.size()))
+      for (auto pos = msg.find(from); pos != std::string::npos;
+           pos = msg.find(from, pos + o.where.size()))
         msg.replace(pos, from.size(), o.where);
     }
     std::istringstream in(msg);
     for (std::string line; std::getline(in, line);)
-      if (!line.empty() && std::find(lines.begin(), lines.end(), line) == lines.end()) lines.push_back(line);
+      if (!line.empty() && std::find(lines.begin(), lines.end(), line) == lines.end())
+        lines.push_back(line);
   }
 }
 
@@ -311,10 +337,13 @@ Study read_study(const std::string& file) {
   try {
     root = YAML::Load(text.str());
   } catch (const YAML::ParserException& e) {
-    throw InputError("error: " + file + ":" + std::to_string(e.mark.line + 1) + ":" + std::to_string(e.mark.column + 1) +
-                     ": (syntax): malformed YAML: " + e.msg + "\n");
+    throw InputError("error: " + file + ":" + std::to_string(e.mark.line + 1) + ":" +
+                     std::to_string(e.mark.column + 1) + ": (syntax): malformed YAML: " + e.msg +
+                     "\n");
   }
-  if (!root.IsMap()) throw InputError("error: " + file + ": (top level): a study is a mapping of keys (key: value)\n");
+  if (!root.IsMap())
+    throw InputError("error: " + file +
+                     ": (top level): a study is a mapping of keys (key: value)\n");
   w.check_map(root, "", "");
   if (!problems.empty()) throw InputError(format_problems(problems));
   check_structure(root, w);
@@ -339,7 +368,8 @@ Study read_study(const std::string& file) {
   std::set<std::string> ids;
   for (const Variant& v : st.variants) {
     if (!ids.insert(v.id).second)
-      w.problem(file, "variants", "two variants override the same keys with the same values (" + v.id + ")");
+      w.problem(file, "variants",
+                "two variants override the same keys with the same values (" + v.id + ")");
     for (const Override& o : v.overrides)
       if (std::find(st.varied_keys.begin(), st.varied_keys.end(), o.path) == st.varied_keys.end())
         st.varied_keys.push_back(o.path);

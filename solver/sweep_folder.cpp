@@ -3,11 +3,10 @@
 #include <fcntl.h>
 #include <unistd.h>
 
-#include <nlohmann/json.hpp>
-
 #include <ctime>
 #include <filesystem>
 #include <fstream>
+#include <nlohmann/json.hpp>
 #include <sstream>
 
 #include "solver/errors.hpp"
@@ -50,9 +49,11 @@ void SweepFolder::claim(const Study& st) const {
     for (const Override& o : v.overrides) jv["overrides"][o.path] = o.value;
     j["variants"].push_back(jv);
   }
-  for (const auto& r : st.rank_by) j["rank_by"].push_back({{"metric", r.metric}, {"descending", r.descending}});
+  for (const auto& r : st.rank_by)
+    j["rank_by"].push_back({{"metric", r.metric}, {"descending", r.descending}});
   for (const auto& l : st.limits)
-    j["limits"].push_back({{"metric", l.metric}, {l.at_least ? "at_least" : "at_most", l.bound}, {"text", l.text}});
+    j["limits"].push_back(
+        {{"metric", l.metric}, {l.at_least ? "at_least" : "at_most", l.bound}, {"text", l.text}});
   const std::string path = dir_ + "/study.json";
   if (std::ifstream in(path); in) {
     nlohmann::json old;
@@ -62,8 +63,9 @@ void SweepFolder::claim(const Study& st) const {
       throw InputError("error: " + path + ": not a sweep's study file; choose another -o folder\n");
     }
     if (old.value("fingerprint", "") != st.fingerprint)
-      throw InputError("error: " + dir_ + " holds a sweep of another base scenario or other `set` values (" +
-                       old.value("study_file", std::string("?")) + "); choose another -o folder or remove it\n");
+      throw InputError(
+          "error: " + dir_ + " holds a sweep of another base scenario or other `set` values (" +
+          old.value("study_file", std::string("?")) + "); choose another -o folder or remove it\n");
   }
   fs::create_directories(dir_ + "/logs");
   write_file_atomically(path, j.dump(1) + "\n");
@@ -72,7 +74,8 @@ void SweepFolder::claim(const Study& st) const {
 VariantState SweepFolder::state(const Variant& v) const {
   if (fs::exists(result(v))) {
     try {
-      return read_result_summary(result(v)).final() ? VariantState::finished : VariantState::to_resume;
+      return read_result_summary(result(v)).final() ? VariantState::finished
+                                                    : VariantState::to_resume;
     } catch (const std::exception&) {
       return VariantState::to_run;  // unreadable: start it again
     }
@@ -86,15 +89,16 @@ std::optional<Outcome> SweepFolder::outcome(const Variant& v) const {
   if (!in) return std::nullopt;
   try {
     const nlohmann::json j = nlohmann::json::parse(in);
-    return Outcome{j.at("exit_code").get<int>(), j.at("wall_s").get<double>(), j.at("message").get<std::string>()};
+    return Outcome{j.at("exit_code").get<int>(), j.at("wall_s").get<double>(),
+                   j.at("message").get<std::string>()};
   } catch (const nlohmann::json::exception&) {
     return std::nullopt;
   }
 }
 
 void SweepFolder::write_outcome(const Variant& v, const Outcome& o) const {
-  const nlohmann::ordered_json j = {{"id", v.id}, {"exit_code", o.exit_code}, {"wall_s", o.wall_s},
-                                    {"message", o.message}};
+  const nlohmann::ordered_json j = {
+      {"id", v.id}, {"exit_code", o.exit_code}, {"wall_s", o.wall_s}, {"message", o.message}};
   write_file_atomically(outcome_file(v), j.dump(1) + "\n");
 }
 
@@ -111,7 +115,8 @@ void SweepFolder::log_line(const std::string& text) const {
   std::tm utc{};
   gmtime_r(&now, &utc);
   std::strftime(stamp, sizeof stamp, "%Y-%m-%dT%H:%M:%SZ", &utc);
-  const std::string line = std::string(stamp) + " pid " + std::to_string(getpid()) + " " + text + "\n";
+  const std::string line =
+      std::string(stamp) + " pid " + std::to_string(getpid()) + " " + text + "\n";
   // O_APPEND: lines of concurrent sweep processes (Slurm tasks) do not overwrite each other.
   const int fd = ::open((dir_ + "/sweep.log").c_str(), O_WRONLY | O_CREAT | O_APPEND, 0644);
   if (fd < 0) return;

@@ -16,9 +16,9 @@
 namespace hawser {
 
 struct Outcome {
-  int exit_code = 0;   // the process's exit code; 128 + n if killed by signal n
-  double wall_s = 0;   // wall time of the process [s]
-  std::string message; // its last "error:" line, or its last line
+  int exit_code = 0;    // the process's exit code; 128 + n if killed by signal n
+  double wall_s = 0;    // wall time of the process [s]
+  std::string message;  // its last "error:" line, or its last line
 };
 
 enum class VariantState { to_run, to_resume, finished };

@@ -19,7 +19,8 @@ namespace {
 /// The progress line of a sweep: counts and an ETA from the mean wall time of runs ended.
 class SweepProgress {
  public:
-  SweepProgress(std::size_t total, int jobs, bool enabled) : total_(total), jobs_(jobs), enabled_(enabled) {}
+  SweepProgress(std::size_t total, int jobs, bool enabled)
+      : total_(total), jobs_(jobs), enabled_(enabled) {}
   void ended(double wall_s, bool failed) {
     ++finished_;
     failed_ += failed;
@@ -37,8 +38,8 @@ class SweepProgress {
       const long s = static_cast<long>(left + 0.5);
       std::snprintf(eta, sizeof eta, "%ld:%02ld:%02ld", s / 3600, (s / 60) % 60, s % 60);
     }
-    std::fprintf(stderr, "\r  sweep: %zu of %zu finished, %zu running, %zu failed, ETA %s   ", finished_, total_,
-                 running, failed_, eta);
+    std::fprintf(stderr, "\r  sweep: %zu of %zu finished, %zu running, %zu failed, ETA %s   ",
+                 finished_, total_, running, failed_, eta);
     std::fflush(stderr);
   }
   void close() {
@@ -55,8 +56,8 @@ class SweepProgress {
 
 }  // namespace
 
-PoolResult run_variants(const Study& st, const std::vector<const Variant*>& todo, const SweepFolder& folder,
-                        int jobs, bool progress) {
+PoolResult run_variants(const Study& st, const std::vector<const Variant*>& todo,
+                        const SweepFolder& folder, int jobs, bool progress) {
   std::deque<std::pair<const Variant*, bool>> queue;  // (variant, resume its file)
   for (const Variant* v : todo) {
     const VariantState s = folder.state(*v);
@@ -92,7 +93,8 @@ PoolResult run_variants(const Study& st, const std::vector<const Variant*>& todo
                     std::to_string(o.wall_s) + " s");
     if (p.resumed() && o.exit_code == 2 && folder.state(p.variant()) != VariantState::finished) {
       // The file cannot be continued (another scenario, another build): run it anew.
-      folder.log_line("resume refused for " + p.variant().id + ": " + o.message + "; starting anew");
+      folder.log_line("resume refused for " + p.variant().id + ": " + o.message +
+                      "; starting anew");
       folder.discard_result(p.variant());
       queue.emplace_front(&p.variant(), false);
     } else {

@@ -18,7 +18,7 @@ struct PoolResult {
 };
 
 /// Runs every variant of `todo` that `folder` does not hold finished.
-PoolResult run_variants(const Study& st, const std::vector<const Variant*>& todo, const SweepFolder& folder,
-                        int jobs, bool progress);
+PoolResult run_variants(const Study& st, const std::vector<const Variant*>& todo,
+                        const SweepFolder& folder, int jobs, bool progress);
 
 }  // namespace hawser

@@ -28,7 +28,8 @@ std::string override_value(const Variant& v, const std::string& key) {
 }
 
 std::string md_cell(std::string s) {
-  for (std::size_t p = s.find('|'); p != std::string::npos; p = s.find('|', p + 2)) s.replace(p, 1, "\\|");
+  for (std::size_t p = s.find('|'); p != std::string::npos; p = s.find('|', p + 2))
+    s.replace(p, 1, "\\|");
   return s;
 }
 }  // namespace
@@ -60,9 +61,11 @@ std::vector<SweepRow> gather_rows(const Study& st, const SweepFolder& folder) {
       if (m != r.result.summary.end() && !m->second.text.empty()) r.message = m->second.text;
       for (const Limit& l : st.limits) {
         const auto x = r.result.number(l.metric);
-        if (!x) r.broken.push_back(l.metric + " missing");
+        if (!x)
+          r.broken.push_back(l.metric + " missing");
         else if (l.at_least ? !(*x >= l.bound) : !(*x <= l.bound))
-          r.broken.push_back(l.metric + (l.at_least ? " >= " : " <= ") + l.text + " (" + number_text(*x) + ")");
+          r.broken.push_back(l.metric + (l.at_least ? " >= " : " <= ") + l.text + " (" +
+                             number_text(*x) + ")");
       }
     }
     rows.push_back(r);
@@ -99,7 +102,9 @@ std::string summary_csv(const Study& st, const std::vector<SweepRow>& rows) {
 std::vector<const SweepRow*> ranked(const Study& st, const std::vector<SweepRow>& rows) {
   std::vector<const SweepRow*> order;
   for (const SweepRow& r : rows) order.push_back(&r);
-  auto group = [](const SweepRow& r) { return r.status != "complete" ? 2 : r.broken.empty() ? 0 : 1; };
+  auto group = [](const SweepRow& r) {
+    return r.status != "complete" ? 2 : r.broken.empty() ? 0 : 1;
+  };
   std::stable_sort(order.begin(), order.end(), [&](const SweepRow* a, const SweepRow* b) {
     if (group(*a) != group(*b)) return group(*a) < group(*b);
     for (const RankKey& k : st.rank_by) {
@@ -119,7 +124,8 @@ std::string ranking_markdown(const Study& st, const std::vector<SweepRow>& rows)
   std::vector<std::string> metrics;
   for (const RankKey& k : st.rank_by) metrics.push_back(k.metric);
   for (const Limit& l : st.limits)
-    if (std::find(metrics.begin(), metrics.end(), l.metric) == metrics.end()) metrics.push_back(l.metric);
+    if (std::find(metrics.begin(), metrics.end(), l.metric) == metrics.end())
+      metrics.push_back(l.metric);
   std::string out = "# Ranking of " + md_cell(st.name) + "\n\n";
   if (!st.rank_by.empty()) {
     out += "Ranked by";
@@ -131,8 +137,8 @@ std::string ranking_markdown(const Study& st, const std::vector<SweepRow>& rows)
   if (!st.limits.empty()) {
     out += " Limits:";
     for (std::size_t i = 0; i < st.limits.size(); ++i)
-      out += std::string(i ? "," : "") + " " + st.limits[i].metric + (st.limits[i].at_least ? " >= " : " <= ") +
-             st.limits[i].text;
+      out += std::string(i ? "," : "") + " " + st.limits[i].metric +
+             (st.limits[i].at_least ? " >= " : " <= ") + st.limits[i].text;
     out += "; a variant that breaks one is marked **BREAKS**.";
   }
   out += "\n\n| rank | variant | name |";
@@ -142,8 +148,10 @@ std::string ranking_markdown(const Study& st, const std::vector<SweepRow>& rows)
   out += " status | verdict |\n" + rule + "---|---|\n";
   std::size_t rank = 0;
   for (const SweepRow* r : ranked(st, rows)) {
-    out += "| " + std::to_string(++rank) + " | " + r->variant->id + " | " + md_cell(r->variant->name) + " |";
-    for (const auto& k : st.varied_keys) out += " " + md_cell(override_value(*r->variant, k)) + " |";
+    out += "| " + std::to_string(++rank) + " | " + r->variant->id + " | " +
+           md_cell(r->variant->name) + " |";
+    for (const auto& k : st.varied_keys)
+      out += " " + md_cell(override_value(*r->variant, k)) + " |";
     for (const auto& m : metrics) {
       const auto x = r->result.number(m);
       out += " " + (x ? number_text(*x) : std::string("")) + " |";

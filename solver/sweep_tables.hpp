@@ -15,7 +15,8 @@ namespace hawser {
 
 struct SweepRow {
   const Variant* variant = nullptr;
-  std::string status;  // the result file's, or "not run", "running", "no result" (failed before writing)
+  std::string
+      status;  // the result file's, or "not run", "running", "no result" (failed before writing)
   std::optional<int> exit_code;
   std::optional<double> wall_s;
   std::string message;

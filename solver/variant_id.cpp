@@ -28,7 +28,8 @@ std::string slug_part(const std::string& s) {
     const char c = s[i];
     if ((c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') || c == '-')
       out += c;
-    else if (c == '.' && i > 0 && i + 1 < s.size() && std::isdigit(static_cast<unsigned char>(s[i - 1])) &&
+    else if (c == '.' && i > 0 && i + 1 < s.size() &&
+             std::isdigit(static_cast<unsigned char>(s[i - 1])) &&
              std::isdigit(static_cast<unsigned char>(s[i + 1])))
       out += 'p';  // 0.5 -> 0p5: no dots in file names but the extension's
     else if (c == '_' && !out.empty() && out.back() != '_')

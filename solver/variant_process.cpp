@@ -13,7 +13,8 @@
 
 namespace hawser {
 
-VariantProcess::VariantProcess(const Study& st, const Variant& v, const SweepFolder& folder, bool resume)
+VariantProcess::VariantProcess(const Study& st, const Variant& v, const SweepFolder& folder,
+                               bool resume)
     : variant_(&v), folder_(&folder), resume_(resume), start_(std::chrono::steady_clock::now()) {
   std::vector<std::string> args = {"hawser", "run", st.scenario};
   for (const std::string& s : st.set_arguments(v)) {
@@ -61,12 +62,16 @@ std::string last_message(const std::string& log) {
 Outcome VariantProcess::finish(int wait_status) const {
   Outcome o;
   o.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - start_).count();
-  if (WIFEXITED(wait_status)) o.exit_code = WEXITSTATUS(wait_status);
-  else if (WIFSIGNALED(wait_status)) o.exit_code = 128 + WTERMSIG(wait_status);
-  if (o.exit_code != 0) o.message = last_message(folder_->log(*variant_));  // success needs no words
+  if (WIFEXITED(wait_status))
+    o.exit_code = WEXITSTATUS(wait_status);
+  else if (WIFSIGNALED(wait_status))
+    o.exit_code = 128 + WTERMSIG(wait_status);
+  if (o.exit_code != 0)
+    o.message = last_message(folder_->log(*variant_));  // success needs no words
   if (WIFSIGNALED(wait_status))
-    o.message = "killed by signal " + std::to_string(WTERMSIG(wait_status)) + " (" + strsignal(WTERMSIG(wait_status)) +
-                ")" + (o.message.empty() ? "" : "; last said: " + o.message);
+    o.message = "killed by signal " + std::to_string(WTERMSIG(wait_status)) + " (" +
+                strsignal(WTERMSIG(wait_status)) + ")" +
+                (o.message.empty() ? "" : "; last said: " + o.message);
   return o;
 }
 

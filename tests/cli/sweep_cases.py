@@ -56,3 +56,9 @@ def same_bits(a, b):
     import numpy as np
     a, b = np.asarray(a), np.asarray(b)
     return a.dtype == b.dtype and a.shape == b.shape and a.tobytes() == b.tobytes()
+
+
+def sweep(hawser, *args, **kw):
+    """`hawser sweep ARGS`, its output captured as text."""
+    import subprocess
+    return subprocess.run([hawser, "sweep", *args], capture_output=True, text=True, **kw)

@@ -24,7 +24,7 @@ import time
 import h5py
 
 from cli_checks import Checks, command_line, text_attr
-from sweep_cases import log_events, read_rows, write_study
+from sweep_cases import log_events, read_rows, sweep, write_study
 
 
 def hawser_runs_in(folder):
@@ -60,7 +60,8 @@ def main():
         before = log_events(out)
         ended = {e[1] for e in before if e[0] == "end" and e[2].startswith("exit 0")}
         started = {e[1] for e in before if e[0] == "start"}
-        c.check(1 <= len(ended) < 4, f"killed part-way: {len(ended)} of 4 ended, {len(started)} started", before)
+        c.check(1 <= len(ended) < 4,
+                f"killed part-way: {len(ended)} of 4 ended, {len(started)} started", before)
         orphans = []
         for _ in range(50):
             orphans = hawser_runs_in(out)
@@ -78,23 +79,28 @@ def main():
                     if text_attr(f, "status") == "running":
                         left_running.add(e[1])
 
-        r = subprocess.run([args.hawser, "sweep", study, "-j", "2", "-o", out], capture_output=True, text=True)
-        c.check(r.returncode == 0, "the restarted sweep completes", r.stdout[-400:] + r.stderr[-400:])
+        r = sweep(args.hawser, study, "-j", "2", "-o", out)
+        c.check(r.returncode == 0, "the restarted sweep completes",
+                r.stdout[-400:] + r.stderr[-400:])
         after = log_events(out)[len(before):]
         rerun = [e for e in after if e[0] == "start" and e[1] in ended]
         c.check(not rerun, "no variant that ended before the kill is started again", rerun)
         killed_running = {e[1] for e in before if e[0] == "start"} - ended
         resumed = {e[1] for e in after if e[0] == "start" and e[2] == "resume"}
         c.check(resumed == left_running and resumed <= killed_running,
-                f"exactly the {len(left_running)} files left 'running' are resumed", (resumed, left_running))
+                f"exactly the {len(left_running)} files left 'running' are resumed",
+                (resumed, left_running))
         rows = read_rows(out)
-        c.check(len(rows) == 4 and all(x["status"] == "complete" for x in rows), "all four variants complete",
+        c.check(len(rows) == 4 and all(x["status"] == "complete" for x in rows),
+                "all four variants complete",
                 [(x["id"], x["status"]) for x in rows])
         all_events = before + after
         for x in rows:
-            ok_ends = [e for e in all_events if e[0] == "end" and e[1] == x["id"] and e[2].startswith("exit 0")]
+            ok_ends = [e for e in all_events
+                       if e[0] == "end" and e[1] == x["id"] and e[2].startswith("exit 0")]
             c.check(len(ok_ends) == 1, f"{x['id']}: one successful run in all", ok_ends)
-        print(f"kill after {len(ended)} ended; second sweep: {len([e for e in after if e[0] == 'start'])} "
+        starts = len([e for e in after if e[0] == "start"])
+        print(f"kill after {len(ended)} ended; second sweep: {starts} "
               f"starts, {len(resumed)} resumed")
     finally:
         shutil.rmtree(tmp, ignore_errors=True)

@@ -24,7 +24,7 @@ import tempfile
 import time
 
 from cli_checks import Checks, command_line
-from sweep_cases import read_rows, write_study
+from sweep_cases import read_rows, sweep, write_study
 
 PROGRAMS = ["munged", "mungekey", "slurmctld", "slurmd", "sbatch", "squeue", "sinfo"]
 
@@ -92,7 +92,8 @@ class Cluster:
 
     def start(self, name, cmd):
         log = open(os.path.join(self.d, name + ".out"), "w")
-        self.procs.append((name, subprocess.Popen(cmd, stdout=log, stderr=subprocess.STDOUT, env=self.env)))
+        p = subprocess.Popen(cmd, stdout=log, stderr=subprocess.STDOUT, env=self.env)
+        self.procs.append((name, p))
 
     def up(self):
         d, host = self.d, socket.gethostname()
@@ -103,7 +104,8 @@ class Cluster:
         os.chmod(key, 0o400)
         with open(os.path.join(d, "slurm.conf"), "w") as f:
             f.write(slurm_conf(d, host, os.cpu_count() or 1))
-        self.start("munged", [prog("munged"), "-F", "-f", "--key-file=" + key, "--socket=" + d + "/munge.sock",
+        self.start("munged", [prog("munged"), "-F", "-f", "--key-file=" + key,
+                              "--socket=" + d + "/munge.sock",
                               "--pid-file=" + d + "/munged.pid", "--log-file=" + d + "/munged.log",
                               "--seed-file=" + d + "/munged.seed"])
         for _ in range(100):
@@ -114,7 +116,8 @@ class Cluster:
         self.start("slurmd", [prog("slurmd"), "-D", "-f", d + "/slurm.conf", "-N", host])
         deadline = time.time() + 40
         while time.time() < deadline:
-            r = subprocess.run([prog("sinfo"), "-h", "-o", "%T"], capture_output=True, text=True, env=self.env)
+            r = subprocess.run([prog("sinfo"), "-h", "-o", "%T"], capture_output=True, text=True,
+                               env=self.env)
             if r.returncode == 0 and r.stdout.strip() == "idle":
                 return True
             if any(p.poll() is not None for _, p in self.procs):
@@ -158,28 +161,31 @@ def main():
     cluster = Cluster(os.path.join(tmp, "cluster"))
     os.makedirs(cluster.d, mode=0o755)
     try:
-        if not c.check(cluster.up(), "a one-node Slurm cluster on localhost is up (sinfo: idle)", cluster.logs()):
+        if not c.check(cluster.up(), "a one-node Slurm cluster on localhost is up (sinfo: idle)",
+                       cluster.logs()):
             return c.summary()
         study = write_study(tmp, args.source)
         local, remote = os.path.join(tmp, "local"), os.path.join(tmp, "slurm")
-        r = subprocess.run([args.hawser, "sweep", study, "-j", "2", "-o", local], capture_output=True, text=True)
+        r = sweep(args.hawser, study, "-j", "2", "-o", local)
         c.check(r.returncode == 0, "the local sweep runs", r.stderr[-400:])
-        r = subprocess.run([args.hawser, "sweep", study, "--slurm", "--time", "10:00", "-o", remote],
-                           capture_output=True, text=True, env=cluster.env)
+        r = sweep(args.hawser, study, "--slurm", "--time", "10:00", "-o", remote, env=cluster.env)
         m = re.search(r"submitted job array (\d+)", r.stdout)
-        if not c.check(r.returncode == 0 and m, "--slurm submits a job array with sbatch", r.stdout + r.stderr):
+        if not c.check(r.returncode == 0 and m, "--slurm submits a job array with sbatch",
+                       r.stdout + r.stderr):
             return c.summary()
         job = m.group(1)
         deadline = time.time() + 90
         while time.time() < deadline:
-            q = subprocess.run([prog("squeue"), "-h", "-j", job], capture_output=True, text=True, env=cluster.env)
+            q = subprocess.run([prog("squeue"), "-h", "-j", job], capture_output=True, text=True,
+                               env=cluster.env)
             if q.returncode == 0 and not q.stdout.strip():
                 break
             time.sleep(0.5)
         c.check(time.time() < deadline, "the array finishes within 90 s", cluster.logs())
-        tasks = [f for f in os.listdir(os.path.join(remote, "logs")) if f.startswith(f"slurm-{job}_")]
+        tasks = [f for f in os.listdir(os.path.join(remote, "logs"))
+                 if f.startswith(f"slurm-{job}_")]
         c.check(len(tasks) == 4, "one array task per variant (four slurm-JOB_TASK.out)", tasks)
-        r = subprocess.run([args.hawser, "sweep", study, "--collect", "-o", remote], capture_output=True, text=True)
+        r = sweep(args.hawser, study, "--collect", "-o", remote)
         c.check(r.returncode == 0, "--collect finds every variant final", r.stdout[-600:])
         a, b = read_rows(local), read_rows(remote)
         c.check(len(a) == 4 and comparable(a) == comparable(b),

@@ -12,11 +12,11 @@ Run by ctest as: python3 test_sweep_validation.py --hawser BIN --source DIR
 """
 import os
 import shutil
-import subprocess
 import sys
 import tempfile
 
 from cli_checks import Checks, command_line
+from sweep_cases import sweep
 
 
 def locate(text, needle, nth=0):
@@ -38,7 +38,8 @@ def main():
     cases = [
         ("an unknown study key", "prodcut:\n  material.damping_time: [1 s]\n",
          [("prodcut", "prodcut", "unknown key")]),
-        ("a bad value in one product item", "product:\n  schedules[0].cruise_speed: [100 km/h, 100 kg]\n",
+        ("a bad value in one product item",
+         "product:\n  schedules[0].cruise_speed: [100 km/h, 100 kg]\n",
          [("100 kg", "schedules[0].cruise_speed", "")]),
         ("an unknown scenario key in a strategy",
          "strategies:\n  - name: fast\n    set:\n      schedules[0].cruise_sped: 300 km/h\n",
@@ -51,14 +52,17 @@ def main():
         ("a key varied on two axes",
          "product:\n  material.damping_time: [1 s, 2 s]\nzip:\n  - material.damping_time: [3 s]\n",
          [("material.damping_time", "material.damping_time", "varied by")]),
-        ("a limit with a unit of the wrong kind", "limits:\n  - metric: peak_east_west_m\n    at_most: 5 kg\n",
+        ("a limit with a unit of the wrong kind",
+         "limits:\n  - metric: peak_east_west_m\n    at_most: 5 kg\n",
          [("5 kg", "limits[0].at_most", "")]),
-        ("a rank order that is no choice", "rank_by:\n  - metric: min_safety_factor\n    order: up\n",
+        ("a rank order that is no choice",
+         "rank_by:\n  - metric: min_safety_factor\n    order: up\n",
          [("up", "rank_by[0].order", "not one of")]),
         ("a climber sent past the tether's top (found by the model, as hawser check does)",
          "variants:\n  - name: far\n    set:\n      schedules[0].to: 150000 km\n",
          [("150000 km", "schedules[0].to", "beyond the top")]),
-        ("two faults at once", "set: {tether.safety_factor: -2}\nproduct:\n  material.density: [1 kg]\n",
+        ("two faults at once",
+         "set: {tether.safety_factor: -2}\nproduct:\n  material.density: [1 kg]\n",
          [("-2", "tether.safety_factor", ""), ("1 kg", "material.density", "")]),
     ]
     try:
@@ -68,21 +72,24 @@ def main():
             with open(path, "w") as f:
                 f.write(text)
             out = os.path.join(tmp, "out")
-            r = subprocess.run([args.hawser, "sweep", path, "-o", out], capture_output=True, text=True)
+            r = sweep(args.hawser, path, "-o", out)
             c.check(r.returncode == 2, f"{what}: exit code 2", (r.returncode, r.stderr))
             c.check(not os.path.exists(out), f"{what}: no sweep folder written")
             for needle, key, words in expected:
-                line, col = locate(text, needle, 1 if needle == "material.damping_time" and "zip" in body else 0)
+                nth = 1 if needle == "material.damping_time" and "zip" in body else 0
+                line, col = locate(text, needle, nth)
                 want = f"{path}:{line}:{col}: {key}:"
                 ok = any(want in l and words in l for l in r.stderr.splitlines())
-                c.check(ok, f"{what}: reported at {os.path.basename(path)}:{line}:{col} with {key}", r.stderr)
+                c.check(ok, f"{what}: reported at {os.path.basename(path)}:{line}:{col} with {key}",
+                        r.stderr)
         # A missing study file and a missing base scenario.
-        r = subprocess.run([args.hawser, "sweep", os.path.join(tmp, "nope.yaml")], capture_output=True, text=True)
-        c.check(r.returncode == 2 and "nope.yaml" in r.stderr, "a missing study file: exit 2, named", r.stderr)
+        r = sweep(args.hawser, os.path.join(tmp, "nope.yaml"))
+        c.check(r.returncode == 2 and "nope.yaml" in r.stderr, "a missing study: exit 2, named",
+                r.stderr)
         path = os.path.join(tmp, "study.yaml")
         with open(path, "w") as f:
             f.write("scenario: missing.yaml\n")
-        r = subprocess.run([args.hawser, "sweep", path, "-o", os.path.join(tmp, "o")], capture_output=True, text=True)
+        r = sweep(args.hawser, path, "-o", os.path.join(tmp, "o"))
         c.check(r.returncode == 2 and f"{path}:1:11: scenario:" in r.stderr,
                 "a missing base scenario: exit 2 at the scenario key", r.stderr)
     finally:
