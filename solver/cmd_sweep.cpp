@@ -81,7 +81,7 @@ int cmd_sweep(const SweepOptions& opt) {
           static_cast<int>(opt.variant >= 0) >
       1)
     throw InputError("error: give one of --slurm, --collect and --variant\n");
-  const Study st = read_study(opt.study);
+  const Study st = read_study(opt.study, opt.variant);
   const SweepFolder folder(opt.output.empty() ? default_folder(opt.study) : opt.output);
   if (opt.collect) {
     if (!fs::exists(folder.dir() + "/study.json"))

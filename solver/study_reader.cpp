@@ -326,7 +326,7 @@ void validate_variant(const Study& st, const Variant& v, std::vector<std::string
 
 }  // namespace
 
-Study read_study(const std::string& file) {
+Study read_study(const std::string& file, long only) {
   std::vector<Problem> problems;
   StudyWalker w(file, problems);
   std::ifstream in(file);
@@ -379,7 +379,8 @@ Study read_study(const std::string& file) {
   st.fingerprint = short_hash(fp);
   if (!problems.empty()) throw InputError(format_problems(problems));
   std::vector<std::string> lines;  // a bad value shared by many variants is reported once
-  for (const Variant& v : st.variants) validate_variant(st, v, lines);
+  for (const Variant& v : st.variants)
+    if (only < 0 || static_cast<long>(v.index) == only) validate_variant(st, v, lines);
   if (!lines.empty()) {
     std::string all;
     for (const auto& l : lines) all += l + "\n";

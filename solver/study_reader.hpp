@@ -9,7 +9,8 @@
 
 namespace hawser {
 
-/// Throws InputError listing every problem.
-Study read_study(const std::string& file);
+/// Throws InputError listing every problem. `only` >= 0: of the variants' overrides, check
+/// only that variant's (a Slurm array task runs one; the submission checked them all).
+Study read_study(const std::string& file, long only = -1);
 
 }  // namespace hawser
