@@ -82,6 +82,10 @@ int cmd_sweep(const SweepOptions& opt) {
       1)
     throw InputError("error: give one of --slurm, --collect and --variant\n");
   const Study st = read_study(opt.study, opt.variant);
+  if (opt.variant >= 0 && static_cast<std::size_t>(opt.variant) >= st.variants.size())
+    throw InputError("error: --variant " + std::to_string(opt.variant) + ": the study has " +
+                     std::to_string(st.variants.size()) + " variants (0 to " +
+                     std::to_string(st.variants.size() - 1) + ")\n");
   const SweepFolder folder(opt.output.empty() ? default_folder(opt.study) : opt.output);
   if (opt.collect) {
     if (!fs::exists(folder.dir() + "/study.json"))
@@ -92,10 +96,6 @@ int cmd_sweep(const SweepOptions& opt) {
   folder.claim(st);
   if (opt.slurm) return run_slurm(st, folder, opt);
   if (opt.variant >= 0) {
-    if (static_cast<std::size_t>(opt.variant) >= st.variants.size())
-      throw InputError("error: --variant " + std::to_string(opt.variant) + ": the study has " +
-                       std::to_string(st.variants.size()) + " variants (0 to " +
-                       std::to_string(st.variants.size() - 1) + ")\n");
     const Variant& v = st.variants[static_cast<std::size_t>(opt.variant)];
     const PoolResult r = run_variants(st, {&v}, folder, 1, false);
     std::cout << "variant " << v.index << " " << v.id << ": "

@@ -82,6 +82,14 @@ def main():
                 ok = any(want in l and words in l for l in r.stderr.splitlines())
                 c.check(ok, f"{what}: reported at {os.path.basename(path)}:{line}:{col} with {key}",
                         r.stderr)
+        # A variant index past the study's end (a Slurm array of another study).
+        path = os.path.join(tmp, "study.yaml")
+        with open(path, "w") as f:
+            f.write(head)
+        r = sweep(args.hawser, path, "--variant", "1", "-o", os.path.join(tmp, "v"))
+        c.check(r.returncode == 2 and "the study has 1 variants" in r.stderr
+                and not os.path.exists(os.path.join(tmp, "v")),
+                "--variant past the last: exit 2, nothing written", r.stderr)
         # A missing study file and a missing base scenario.
         r = sweep(args.hawser, os.path.join(tmp, "nope.yaml"))
         c.check(r.returncode == 2 and "nope.yaml" in r.stderr, "a missing study: exit 2, named",
