@@ -74,7 +74,8 @@ def main():
             serial.append(s)
             sweep.append(w)
             print(f"pass {i + 1} (load average {load:.1f}): one after another {s[0]:.2f} s wall, "
-                  f"{s[1]:.2f} s processor; sweep -j {a.j} {w[0]:.2f} s wall, {w[1]:.2f} s processor")
+                  f"{s[1]:.2f} s processor; sweep -j {a.j} {w[0]:.2f} s wall, "
+                  f"{w[1]:.2f} s processor")
         bs, bw = min(x[0] for x in serial), min(x[0] for x in sweep)
         print(f"16 variants, {a.hours:g} h each, best of {a.repeat}: "
               f"one after another {bs:.2f} s; "
