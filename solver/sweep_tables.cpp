@@ -141,6 +141,16 @@ std::string ranking_markdown(const Study& st, const std::vector<SweepRow>& rows)
              (st.limits[i].at_least ? " >= " : " <= ") + st.limits[i].text;
     out += "; a variant that breaks one is marked **BREAKS**.";
   }
+  // A metric no result records is most likely misspelt: say so rather than rank silently.
+  for (const auto& m : metrics) {
+    bool seen = false;
+    for (const SweepRow& r : rows) seen = seen || r.result.number(m).has_value();
+    const bool any_final = std::any_of(rows.begin(), rows.end(),
+                                       [](const SweepRow& r) { return r.result.final(); });
+    if (!seen && any_final)
+      out += "\n\nNote: no result records `" + m +
+             "` (see the columns of summary.csv for the metrics there are).";
+  }
   out += "\n\n| rank | variant | name |";
   std::string rule = "|---|---|---|";
   for (const auto& k : st.varied_keys) out += " " + md_cell(k) + " |", rule += "---|";

@@ -11,6 +11,7 @@ Checks and where the expectation comes from (the issue's brief and architecture.
   run alone (same input, same binary: the program is deterministic), wall time aside;
 - ranking.md lists every variant, the failed one last, and marks the limit breakers;
 - a second sweep of the same study in the same folder starts no run (everything is finished);
+- a ranking metric no result records (a misspelt name) is named in the ranking;
 - variant ids do not depend on where the study lies or where the sweep writes;
 - not a terminal: no progress line on standard error; on a terminal (a pseudo-terminal here),
   a progress line with the finished, running and failed counts and an ETA;
@@ -140,6 +141,17 @@ def main():
         restarts = len([e for e in log_events(out) if e[0] == "start"])
         c.check(r2.returncode == 0 and restarts == starts,
                 "a second sweep of a finished study starts no run", r2.stdout[-300:])
+
+        # A misspelt metric is named in the ranking (the folder serves the edited study: ranking
+        # and limits are not part of what its results depend on).
+        with open(study) as f:
+            text = f.read()
+        typo = os.path.join(tmp, "typo.yaml")
+        with open(typo, "w") as f:
+            f.write(text.replace("metric: min_safety_factor", "metric: min_safety_factr"))
+        r4 = sweep(args.hawser, typo, "--collect", "-o", out)
+        c.check(r4.returncode == 0 and "no result records `min_safety_factr`" in r4.stdout,
+                "--collect names a ranking metric that no result records", r4.stdout[:600])
 
         other = os.path.join(tmp, "elsewhere")
         os.makedirs(other)
