@@ -5,6 +5,7 @@
 #include <iostream>
 
 #include "solver/cmd_modes.hpp"
+#include "solver/cmd_sweep.hpp"
 #include "solver/commands.hpp"
 #include "solver/errors.hpp"
 
@@ -42,6 +43,28 @@ int main(int argc, char** argv) {
   modes->add_option("-o,--output", output, "write the mode shapes to this HDF5 file");
   modes->add_flag("--json", json, "print JSON (stable keys, units in the key names)");
 
+  // Sweeps: many variants of one scenario (solver/cmd_sweep.hpp).
+  SweepOptions sw;
+  CLI::App* sweep = app.add_subcommand(
+      "sweep", "run the variants of a study (YAML) on the local cores or as a Slurm job array; "
+               "summary.csv and a ranking");
+  sweep->add_option("STUDY", sw.study, "study file (YAML; see config/study_keys.yaml)")->required();
+  sweep->add_option("-j,--jobs", sw.jobs, "runs at once on this machine (default: every core)")
+      ->check(CLI::PositiveNumber);
+  sweep->add_option("-o,--output", sw.output, "sweep folder (default: <study name>-sweep)");
+  sweep->add_option("--variant", sw.variant, "run only this variant, by index (a Slurm array task)")
+      ->check(CLI::NonNegativeNumber);
+  sweep->add_flag("--collect", sw.collect,
+                  "build summary.csv and ranking.md from the folder's finished files");
+  sweep->add_flag("--slurm", sw.slurm,
+                  "write the sbatch script of a job array (one task per variant) and submit it");
+  sweep->add_flag("--dry-run", sw.dry_run,
+                  "with --slurm: print the script instead of submitting it");
+  sweep->add_option("--partition", sw.slurm_options.partition, "with --slurm: the Slurm partition");
+  sweep->add_option("--time", sw.slurm_options.time,
+                    "with --slurm: time limit of each task (e.g. 2:00:00)");
+  sweep->add_option("--mem", sw.slurm_options.mem, "with --slurm: memory of each task (e.g. 4G)");
+
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
@@ -54,6 +77,7 @@ int main(int argc, char** argv) {
     if (keys->parsed()) return cmd_keys();
     if (run->parsed()) return cmd_run(opt, output, resume);
     if (modes->parsed()) return cmd_modes(opt, modes_k, output, json);
+    if (sweep->parsed()) return cmd_sweep(sw);
   } catch (const InputError& e) {
     std::cerr << e.what();
     if (std::string(e.what()).back() != '\n') std::cerr << '\n';

@@ -1,7 +1,7 @@
 // Loaded static states of the as-built tether (solver/static_solver.hpp): L0 stays
 // fixed and the nodes move under what is hung on the tether. Every check value names its
 // source.
-#include <catch2/catch.hpp>
+#include "catch_compat.hpp"
 #include <chrono>
 #include <cmath>
 #include <functional>
