@@ -94,7 +94,8 @@ def check_parked(c, a, demo, tmp):
             "with nothing hung on it, the static state is the as-built geometry")
     h = np.linalg.norm(bare["built"], axis=1) - A_EQ
     k = int(np.argmin(np.abs(h - 20000e3)))
-    climber = PARKED.format(mass=repr(CLIMBER_KG), h=repr(h[k]), to=repr(h[k] + 1e6))
+    climber = PARKED.format(mass=repr(float(CLIMBER_KG)), h=repr(float(h[k])),
+                            to=repr(float(h[k]) + 1e6))
     out = os.path.join(tmp, "parked.h5")
     p = run(a.hawser, "run", demo, "-o", out, "--set", climber, *COMMON)
     c.check(p.returncode == 0, "the tether with a parked climber runs", p.stderr[-300:])
@@ -138,7 +139,7 @@ def check_parked(c, a, demo, tmp):
             "a load the base cannot hold is refused (exit 2), naming the load and the step reached",
             f"exit {p.returncode}: {p.stderr.strip()[-400:]!r}")
     c.check(not os.path.exists(slack_h5), "nothing written for it")
-    return {"h": h[k], "k": k, "x": x, "t": t, "built": bare["built"], "drop": drop,
+    return {"h": float(h[k]), "k": k, "x": x, "t": t, "built": bare["built"], "drop": drop,
             "base_bare": base_bare}
 
 

@@ -83,6 +83,16 @@ PartitionName=hawser Nodes={host} Default=YES MaxTime=INFINITE State=UP
 """
 
 
+def slurm_version():
+    """(major, minor) of the installed slurmd, from `slurmd -V` ("slurm 24.11.5")."""
+    out = subprocess.run([prog("slurmd"), "-V"], capture_output=True, text=True).stdout.split()
+    try:
+        major, minor = out[-1].split(".")[:2]
+        return int(major), int(minor)
+    except (IndexError, ValueError):
+        return (0, 0)
+
+
 class Cluster:
     """munged, slurmctld and slurmd of this test, stopped by PID."""
 
@@ -104,6 +114,12 @@ class Cluster:
         os.chmod(key, 0o400)
         with open(os.path.join(d, "slurm.conf"), "w") as f:
             f.write(slurm_conf(d, host, os.cpu_count() or 1))
+        if slurm_version() >= (24, 5):
+            # Slurm 24.05 and later load a cgroup plugin in slurmd even with proctrack/linuxproc
+            # and task/none, and stop where /sys/fs/cgroup is not mounted (a chroot); "disabled"
+            # exists from 24.05 on (cgroup.conf(5)), and earlier versions do not load it.
+            with open(os.path.join(d, "cgroup.conf"), "w") as f:
+                f.write("CgroupPlugin=disabled\n")
         self.start("munged", [prog("munged"), "-F", "-f", "--key-file=" + key,
                               "--socket=" + d + "/munge.sock",
                               "--pid-file=" + d + "/munged.pid", "--log-file=" + d + "/munged.log",

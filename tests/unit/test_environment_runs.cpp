@@ -453,7 +453,7 @@ TEST_CASE("with J2 the J2 equilibrium stays put, and without J2 it does not", "[
 
 // ---- events --------------------------------------------------------------------------------
 
-TEST_CASE("a cut changes no momentum at its instant; then the upper part rises and the lower falls",
+TEST_CASE("a cut changes no momentum at its instant, then the upper part rises and the lower falls",
           "[environment][events]") {
   // Newton's third law: the cut removes an internal pair of forces (the cut element's tension
   // on its two nodes), so the tether's total inertial momentum changes at the same rate just

@@ -383,7 +383,7 @@ TEST_CASE("static tides: the starting state carries the Moon's tide at t = 0",
   CHECK(moved > 1.0);
 }
 
-TEST_CASE("the mean wind of the storm leans the ribbon; its modes are damped",
+TEST_CASE("the mean wind of the storm leans the ribbon and its modes are damped",
           "[statics][modes][environment]") {
   const auto t0 = std::chrono::steady_clock::now();
   const TetherModel storm = build_model(load_scenario(kStorm, {}));

@@ -212,7 +212,7 @@ TEST_CASE("damped oscillator with BDF matches its analytic solution", "[integrat
   CHECK(worst < 1e3 * 1e-8);  // as above: within 1e3 rtol (common practice)
 }
 
-TEST_CASE("bdf uses the analytic band Jacobian; statistics are consistent", "[integrator]") {
+TEST_CASE("bdf uses the analytic band Jacobian and its statistics are consistent", "[integrator]") {
   // A stiff chain: 20 masses, stiff dashpots (c = 100 N s/m, kappa = 1 N/m, m = 1 kg).
   // Mode k (overdamped here) decays with rates of about c lambda_k / m and kappa / c:
   // about 400 1/s for the fastest, 0.01 1/s for the slowest, a stiffness ratio of 4e4.
@@ -348,7 +348,7 @@ TEST_CASE("a root function stops the run where the solution crosses a level", "[
   }
 }
 
-TEST_CASE("exceptions in callbacks propagate; impossible runs throw IntegratorFailure",
+TEST_CASE("exceptions in callbacks propagate and impossible runs throw IntegratorFailure",
           "[integrator]") {
   for (Method method : all_methods) {
     DYNAMIC_SECTION(method_name(method)) {
