@@ -480,6 +480,11 @@ void H5Writer::publish_index() {
     tree_.write_attributes(file.get());
     file.close("H5Fclose");
   }
+  replace_published(tmp);
+}
+
+// The one step that changes what readers of `path` see: a closed file renamed over it.
+void H5Writer::replace_published(const std::string& tmp) const {
   if (options_.durability == Durability::power_loss) sync_path(tmp, false);
   if (std::rename(tmp.c_str(), path_.c_str()) != 0)
     throw LibraryError(errno_text("rename to", path_));
@@ -538,10 +543,7 @@ void H5Writer::write_final() {
   }
   tree_.write_attributes(file.get());
   file.close("H5Fclose");
-  if (options_.durability == Durability::power_loss) sync_path(tmp, false);
-  if (std::rename(tmp.c_str(), path_.c_str()) != 0)
-    throw LibraryError(errno_text("rename to", path_));
-  if (options_.durability == Durability::power_loss) sync_path(folder_of(path_), true);
+  replace_published(tmp);
 }
 
 void H5Writer::close() {

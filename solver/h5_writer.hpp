@@ -183,6 +183,7 @@ class H5Writer {
   std::string next_segment_name();
   void publish_index();
   void write_final();
+  void replace_published(const std::string& tmp) const;
 
   std::string path_;
   std::string parts_dir_;     // "<path>.parts"
