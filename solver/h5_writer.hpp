@@ -53,7 +53,7 @@
 // Costs: a flush writes the new rows once, uncompressed, plus an index of a few kB per series
 // and segment; close() copies every row once more into the final file. Flushes are the
 // caller's policy (the run driver flushes by wall-time interval). Measured figures: README,
-// "Result files".
+// "Results".
 //
 // Residual risk, accepted: a reader holding an index that close() then replaces reads NaN (the
 // fill value of a virtual dataset whose source file is gone) for rows it had not read before
