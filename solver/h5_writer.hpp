@@ -29,15 +29,15 @@
 //   them against the directory of the index file, so a killed run's file and its .parts folder
 //   can be moved together.
 //
-// Why this design (measured with HDF5 1.10.8 and 1.14.5, h5py 3.7 and 3.12)
+// Why this design (its tests pass with HDF5 1.10.8 and h5py 3.7, HDF5 1.14.5 and h5py 3.13)
 //   * Stock HDF5 writing in place is consistent only between flushes: a reader during a write,
 //     or a file killed in one, may find metadata pointing at bytes not yet written. Plain
 //     HDF5 also holds a lock on a file open for writing, so live readers fail.
-//   * SWMR (single writer, multiple readers) sets a flag in the superblock while the writer
-//     runs and after a kill: every reader must open in SWMR mode, a plain h5py.File(path)
-//     fails until `h5clear -s`, and continuing the file after a kill needs that flag cleared,
-//     which the public API cannot do; attributes (the run's status) cannot be created while
-//     in SWMR mode.
+//   * SWMR (single writer, multiple readers; HDF5 1.10 user guide, recalled from memory) sets a
+//     flag in the superblock while the writer runs and after a kill: every reader must open in
+//     SWMR mode, a plain h5py.File(path) fails until `h5clear -s`, and continuing the file
+//     after a kill needs that flag cleared, which the public API cannot do; attributes (the
+//     run's status) cannot be created while in SWMR mode.
 //   * Closed files and rename(2) need nothing of the library but its public API and give
 //     plain readers a consistent file at every instant, also across HDF5 versions.
 //   The previous design, a custom virtual-file driver ordering commits under HDF5 1.10,
