@@ -4,6 +4,9 @@ Not a test itself (ctest runs tests/cli/test_*.py only). A test script imports i
 directory, which Python puts first on the module path.
 """
 import argparse
+import os
+import select
+import subprocess
 
 
 def command_line():
@@ -40,3 +43,28 @@ def text_attr(obj, name):
     """An HDF5 string attribute as str (h5py returns bytes for fixed-length strings)."""
     v = obj.attrs.get(name)
     return v.decode("utf-8") if isinstance(v, bytes) else v
+
+
+def run_on_terminal(cmd, **popen_args):
+    """Runs `cmd` with standard error on a pseudo-terminal (what a user at a terminal sees);
+    returns (process, text written to the terminal). Standard output is a pipe unless
+    popen_args say otherwise; the caller reads it and waits for the process."""
+    master, slave = os.openpty()
+    popen_args.setdefault("stdout", subprocess.PIPE)
+    proc = subprocess.Popen(cmd, stderr=slave, **popen_args)
+    os.close(slave)
+    got = b""
+    while True:
+        ready, _, _ = select.select([master], [], [], 0.2)
+        if ready:
+            try:
+                chunk = os.read(master, 4096)
+            except OSError:  # the terminal closes when the program exits
+                break
+            if not chunk:
+                break
+            got += chunk
+        elif proc.poll() is not None:
+            break
+    os.close(master)
+    return proc, got.decode(errors="replace")

@@ -21,7 +21,6 @@ import json
 import math
 import os
 import re
-import select
 import subprocess
 import sys
 import tempfile
@@ -30,7 +29,7 @@ import h5py
 import numpy as np
 import yaml
 
-from cli_checks import Checks, command_line, text_attr
+from cli_checks import Checks, command_line, run_on_terminal, text_attr
 
 # Short demo: 40 elements, 30 min, output every 5 min (the demo's own output_interval).
 N_EL = 40
@@ -543,27 +542,9 @@ def check_slack(c, h, kick_path, kick_args):
 def check_progress(c, h, demo_path):
     """The progress line (simulated time, % done, steps, ETA) appears when stderr is a terminal
     (architecture.md, command line); the pipe case is checked in check_result_file."""
-    master, slave = os.openpty()
-    proc = subprocess.Popen([h.exe, "run", demo_path, "-o", h.out("tty.h5"), *SHORT], stdout=subprocess.PIPE,
-                            stderr=slave, cwd=h.tmp)
-    os.close(slave)
-    got = b""
-    while True:
-        ready, _, _ = select.select([master], [], [], 0.2)
-        if ready:
-            try:
-                chunk = os.read(master, 4096)
-            except OSError:  # the terminal closes when the program exits
-                break
-            if not chunk:
-                break
-            got += chunk
-        elif proc.poll() is not None:
-            break
-    os.close(master)
+    proc, text = run_on_terminal([h.exe, "run", demo_path, "-o", h.out("tty.h5"), *SHORT], cwd=h.tmp)
     stdout = proc.stdout.read().decode()
     proc.wait(timeout=60)
-    text = got.decode(errors="replace")
     c.check(proc.returncode == 0 and "ETA" in text and "%" in text and "steps" in text,
             "stderr on a terminal: progress line with steps, % and ETA", repr(text[:200]))
     c.check("results:" in stdout and "ETA" not in stdout, "stderr on a terminal: the summary still goes to stdout")

@@ -28,7 +28,7 @@ import subprocess
 import sys
 import tempfile
 
-from cli_checks import Checks, command_line
+from cli_checks import Checks, command_line, run_on_terminal
 from sweep_cases import log_events, read_rows, same_bits, summary_attrs, sweep, write_study
 
 STALL = """\
@@ -40,23 +40,9 @@ variants:
 
 def progress_on_terminal(c, args, study, out):
     """Standard error on a pseudo-terminal: the sweep's progress line appears."""
-    import pty
-    master, slave = pty.openpty()
-    p = subprocess.Popen([args.hawser, "sweep", study, "-j", "2", "-o", out],
-                         stdout=subprocess.DEVNULL, stderr=slave)
-    os.close(slave)
-    seen = b""
-    while True:
-        try:
-            chunk = os.read(master, 4096)
-        except OSError:  # the terminal closed with the last writer
-            break
-        if not chunk:
-            break
-        seen += chunk
+    p, text = run_on_terminal([args.hawser, "sweep", study, "-j", "2", "-o", out],
+                              stdout=subprocess.DEVNULL)
     p.wait()
-    os.close(master)
-    text = seen.decode(errors="replace")
     c.check("\r  sweep: " in text and "5 of 5 finished, 0 running, 1 failed" in text
             and "ETA" in text,
             "on a terminal: a progress line with counts and an ETA", text[-300:])
