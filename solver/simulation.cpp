@@ -136,8 +136,13 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
       }
     }
   }
+  // Events already applied: a new run has applied those at t <= 0 above; a checkpoint is taken
+  // right after an output, before any event at that same time, so a resumed run still applies
+  // events at t_start.
   std::size_t next_event = 0;
-  while (next_event < events.size() && events[next_event] <= t_start) ++next_event;
+  while (next_event < events.size() &&
+         (opt.resume ? events[next_event] < t_start : events[next_event] <= 0.0))
+    ++next_event;
   auto last_flush = std::chrono::steady_clock::now();
   int since_flush = 0;
   // Publish what was recorded, with the state to continue from (an output time's).
