@@ -78,7 +78,7 @@ class ForceModel {
   virtual bool acts_on_point_masses() const { return false; }
   /// False when add_jacobian() leaves terms of dF/dx out (enough to steer an integrator's
   /// Newton iteration); static solves and linearisations then difference the forces
-  /// (solver/differenced_jacobian.hpp).
+  /// (solver/assembly/differenced_jacobian.hpp).
   virtual bool exact_position_jacobian() const { return true; }
   /// F(:, i) += force on node i [N].
   virtual void add_forces(const TetherState& s, Matrix3X& f) const = 0;

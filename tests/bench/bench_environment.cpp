@@ -28,9 +28,9 @@
 #include <string>
 #include <vector>
 
-#include "solver/initial_state.hpp"
-#include "solver/scenario.hpp"
-#include "solver/simulation.hpp"
+#include "solver/integration/initial_state.hpp"
+#include "solver/input/scenario.hpp"
+#include "solver/integration/simulation.hpp"
 
 using namespace hawser;
 

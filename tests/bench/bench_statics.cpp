@@ -1,4 +1,4 @@
-// Benchmark: what the loaded static state (solver/static_solver.hpp) costs, against mesh size.
+// Benchmark: what the loaded static state (solver/assembly/static_solver.hpp) costs, against mesh size.
 //
 // Problems, each at N elements:
 //   climber: scenarios/demo.yaml with a 10 t climber parked at 20,000 km (the case);
@@ -17,8 +17,8 @@
 #include <string>
 #include <vector>
 
-#include "solver/scenario.hpp"
-#include "solver/tether_model.hpp"
+#include "solver/input/scenario.hpp"
+#include "solver/assembly/tether_model.hpp"
 
 using namespace hawser;
 

@@ -15,9 +15,9 @@
 #include <cstdio>
 #include <string>
 
-#include "solver/initial_state.hpp"
-#include "solver/scenario.hpp"
-#include "solver/simulation.hpp"
+#include "solver/integration/initial_state.hpp"
+#include "solver/input/scenario.hpp"
+#include "solver/integration/simulation.hpp"
 
 using namespace hawser;
 

@@ -20,7 +20,7 @@
 #include <string>
 #include <vector>
 
-#include "solver/h5_writer.hpp"
+#include "solver/output/h5_writer.hpp"
 
 namespace {
 // One unbuffered write(2) per line: the line has left the process before the next flush starts

@@ -2,7 +2,7 @@
 """Result files can be read while being written, and survive the writer being killed.
 
 Drives tests/bench/h5_killtest (built beside the hawser program, in <build>/tests/), which
-writes with H5Writer (solver/h5_writer.hpp) and prints "flushed K" each time K rows are durable.
+writes with H5Writer (solver/output/h5_writer.hpp) and prints "flushed K" each time K rows are durable.
 Every check opens the file with plain h5py.File(path, "r") (default driver, no SWMR, no h5clear).
 The writer's promise (h5_writer.hpp, "The guarantee"): at every instant the file is a complete
 HDF5 file holding every row up to the last flush.

@@ -7,7 +7,7 @@ hour or a minute), so the whole file runs in a few seconds. What each check expe
 that expectation comes from, is written beside it:
   architecture.md  /work/shared/design/architecture.md, "Command line" and "Result file"
   keys             config/scenario_keys.yaml (`hawser keys`), the meaning of each key
-  recorder         solver/result_recorder.hpp (status words "running", "complete", "stopped",
+  recorder         solver/output/result_recorder.hpp (status words "running", "complete", "stopped",
                    "failed")
   CVODE guide      SUNDIALS CVODE user guide, CVodeSetMaxNumSteps: "maximum number of steps to
                    be taken by the solver in its attempt to reach the next output time"

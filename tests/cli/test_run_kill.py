@@ -7,14 +7,14 @@ a flush every 2 outputs, so that a run takes several seconds. Every read is a pl
 h5py.File(path, "r") (default driver, no SWMR, no h5clear). Expectations and their sources:
   architecture.md  /work/shared/design/architecture.md, "Result file": "flushed at least every
                    output block so that a killed run leaves a readable file"
-  h5_writer.hpp    solver/h5_writer.hpp, "The guarantee": after a flush everything written is
+  h5_writer.hpp    solver/output/h5_writer.hpp, "The guarantee": after a flush everything written is
                    readable at every later moment, the writer running or killed; /time, the
                    series created first, is committed last, so it is never longer than another
                    series, and after a kill inside a flush the series differ by at most that
                    flush block. Residual risk it accepts: a reader that reads a page at the
                    instant the writer rewrites it can see half of it; such a read is retried
                    (at most twice, 20 ms apart) and the number of retries is printed.
-  recorder         solver/result_recorder.hpp: root status "running" until the run finishes.
+  recorder         solver/output/result_recorder.hpp: root status "running" until the run finishes.
   simulation.cpp   outputs at t = i * output_interval (t_out = output_index * output_interval).
 Rows are compared bit for bit with the finished run of the same scenario (the program is
 deterministic: same input, same binary, same arithmetic). A killed run continued with --resume

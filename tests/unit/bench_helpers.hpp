@@ -3,7 +3,7 @@
 // a straight bench cable, one run kept in memory, and the signal measurements (modal
 // coordinate, frequency from zero crossings, peaks for decay and pulse arrival).
 //
-// Bench geometry (solver/mesh.cpp): node k sits at x_k along +x from node 0, the suspension
+// Bench geometry (solver/assembly/mesh.cpp): node k sits at x_k along +x from node 0, the suspension
 // point; gravity pulls along +x; cable_length is the stretched length and node masses are
 // rho A times the stretched length of the adjacent half-elements.
 #include <algorithm>
@@ -16,10 +16,10 @@
 #include <vector>
 
 #include "memory_sink.hpp"
-#include "solver/initial_state.hpp"
-#include "solver/scenario.hpp"
-#include "solver/simulation.hpp"
-#include "solver/tether_model.hpp"
+#include "solver/integration/initial_state.hpp"
+#include "solver/input/scenario.hpp"
+#include "solver/integration/simulation.hpp"
+#include "solver/assembly/tether_model.hpp"
 
 namespace hawser::testing::bench {
 

@@ -2,7 +2,7 @@
 // Keeps a run's outputs in memory for the tests.
 #include <vector>
 
-#include "solver/simulation.hpp"
+#include "solver/integration/simulation.hpp"
 
 namespace hawser::testing {
 

@@ -17,12 +17,12 @@
 
 #include "memory_sink.hpp"
 #include "models/climber_profile.hpp"
-#include "solver/equilibrium.hpp"
-#include "solver/initial_state.hpp"
-#include "solver/modal_analysis.hpp"
-#include "solver/scenario.hpp"
-#include "solver/simulation.hpp"
-#include "solver/static_solver.hpp"
+#include "solver/assembly/equilibrium.hpp"
+#include "solver/integration/initial_state.hpp"
+#include "solver/integration/modal_analysis.hpp"
+#include "solver/input/scenario.hpp"
+#include "solver/integration/simulation.hpp"
+#include "solver/assembly/static_solver.hpp"
 
 using namespace hawser;
 

@@ -5,8 +5,8 @@
 
 #include "models/planet.hpp"
 #include "models/taper_design.hpp"
-#include "solver/design_report.hpp"
-#include "solver/scenario.hpp"
+#include "solver/output/design_report.hpp"
+#include "solver/input/scenario.hpp"
 
 using namespace hawser;
 

@@ -4,9 +4,9 @@
 #include <cmath>
 
 #include "memory_sink.hpp"
-#include "solver/initial_state.hpp"
-#include "solver/scenario.hpp"
-#include "solver/simulation.hpp"
+#include "solver/integration/initial_state.hpp"
+#include "solver/input/scenario.hpp"
+#include "solver/integration/simulation.hpp"
 
 using namespace hawser;
 

@@ -16,11 +16,11 @@
 #include "models/planet_gravity.hpp"
 #include "models/tidal_force.hpp"
 #include "models/wind_field.hpp"
-#include "solver/errors.hpp"
-#include "solver/initial_state.hpp"
-#include "solver/scenario.hpp"
-#include "solver/simulation.hpp"
-#include "solver/tether_model.hpp"
+#include "solver/input/errors.hpp"
+#include "solver/integration/initial_state.hpp"
+#include "solver/input/scenario.hpp"
+#include "solver/integration/simulation.hpp"
+#include "solver/assembly/tether_model.hpp"
 
 using namespace hawser;
 

@@ -1,4 +1,4 @@
-// The compiled vector arithmetic (solver/sundials_fast_vector.hpp) against SUNDIALS' own
+// The compiled vector arithmetic (solver/integration/sundials_fast_vector.hpp) against SUNDIALS' own
 // serial implementation, operation by operation, on the same random data.
 #include "catch_compat.hpp"
 
@@ -9,8 +9,8 @@
 #include <random>
 #include <vector>
 
-#include "solver/sundials_compat.hpp"
-#include "solver/sundials_fast_vector.hpp"
+#include "solver/integration/sundials_compat.hpp"
+#include "solver/integration/sundials_fast_vector.hpp"
 
 namespace {
 struct Vectors {

@@ -10,8 +10,8 @@
 #include <string>
 #include <vector>
 
-#include "solver/h5_handles.hpp"
-#include "solver/h5_writer.hpp"
+#include "solver/output/h5_handles.hpp"
+#include "solver/output/h5_writer.hpp"
 
 using hawser::H5Writer;
 using hawser::h5check;

@@ -8,8 +8,8 @@
 #include "models/planet_gravity.hpp"
 #include "models/rotating_frame.hpp"
 #include "models/uniform_gravity.hpp"
-#include "solver/scenario.hpp"
-#include "solver/tether_system.hpp"
+#include "solver/input/scenario.hpp"
+#include "solver/integration/tether_system.hpp"
 
 using namespace hawser;
 

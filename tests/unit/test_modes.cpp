@@ -1,4 +1,4 @@
-// Modal analysis (solver/modal_analysis.hpp) against closed-form frequencies of classical
+// Modal analysis (solver/integration/modal_analysis.hpp) against closed-form frequencies of classical
 // cables on the uniform-field test bench, against finite differences of the force assembly,
 // against the structure theory of gyroscopic systems, and against time-domain runs of the
 // nonlinear model started in a computed mode.
@@ -10,10 +10,10 @@
 #include <vector>
 
 #include "memory_sink.hpp"
-#include "solver/errors.hpp"
-#include "solver/modal_analysis.hpp"
-#include "solver/scenario.hpp"
-#include "solver/simulation.hpp"
+#include "solver/input/errors.hpp"
+#include "solver/integration/modal_analysis.hpp"
+#include "solver/input/scenario.hpp"
+#include "solver/integration/simulation.hpp"
 
 using namespace hawser;
 

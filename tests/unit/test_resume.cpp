@@ -1,13 +1,13 @@
-// Resuming a run from a checkpoint (solver/simulation.hpp, RunCheckpoint): the resumed run
+// Resuming a run from a checkpoint (solver/integration/simulation.hpp, RunCheckpoint): the resumed run
 // continues the outputs and applies every event not yet applied, also one that falls at the
 // checkpoint's own time.
 #include "catch_compat.hpp"
 
 #include <cmath>
 
-#include "solver/initial_state.hpp"
-#include "solver/scenario.hpp"
-#include "solver/simulation.hpp"
+#include "solver/integration/initial_state.hpp"
+#include "solver/input/scenario.hpp"
+#include "solver/integration/simulation.hpp"
 #include "tests/unit/memory_sink.hpp"
 
 using namespace hawser;

@@ -1,4 +1,4 @@
-// Loaded static states of the as-built tether (solver/static_solver.hpp): L0 stays
+// Loaded static states of the as-built tether (solver/assembly/static_solver.hpp): L0 stays
 // fixed and the nodes move under what is hung on the tether. Every check value names its
 // source.
 #include "catch_compat.hpp"
@@ -11,10 +11,10 @@
 #include "bench_helpers.hpp"
 #include "models/bar_elements.hpp"
 #include "models/uniform_gravity.hpp"
-#include "solver/errors.hpp"
-#include "solver/modal_analysis.hpp"
-#include "solver/simulation.hpp"
-#include "solver/static_solver.hpp"
+#include "solver/input/errors.hpp"
+#include "solver/integration/modal_analysis.hpp"
+#include "solver/integration/simulation.hpp"
+#include "solver/assembly/static_solver.hpp"
 
 using namespace hawser;
 using namespace hawser::testing::bench;
@@ -76,7 +76,7 @@ TEST_CASE("an elastic bar hanging under its own weight, then with a tip mass hun
   // (unstretched) volume and L the unstretched length. The lumped-mass bar gives the first
   // term exactly (the element tensions are the midpoint rule of the linear tension) for a
   // bar of uniform mass per unstretched metre. The bench's bar has its mass uniform per
-  // stretched metre instead (solver/mesh.hpp): with rho = total mass / (A L0) the two differ
+  // stretched metre instead (solver/assembly/mesh.hpp): with rho = total mass / (A L0) the two differ
   // by about strain / 6 in relative terms (a second-order effect: 2e-5 at this bar's largest
   // strain of 1e-4), hence the 1e-4 tolerance on the self-weight stretch below.
   const double g = 9.81, e = 1e10, a = 1e-4, tip = 50.0;

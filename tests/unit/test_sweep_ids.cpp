@@ -7,8 +7,8 @@
 // independent few-line Python implementation), and one id is pinned as a regression value.
 #include "catch_compat.hpp"
 
-#include "solver/slurm_array.hpp"
-#include "solver/variant_id.hpp"
+#include "solver/cli/slurm_array.hpp"
+#include "solver/cli/variant_id.hpp"
 
 using namespace hawser;
 

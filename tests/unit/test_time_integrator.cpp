@@ -1,4 +1,4 @@
-// Checks of the SUNDIALS glue (solver/time_integrator.hpp) on linear systems with
+// Checks of the SUNDIALS glue (solver/integration/time_integrator.hpp) on linear systems with
 // closed-form solutions:
 //  - a fixed-fixed chain of equal masses joined by springs and dashpots, with the
 //    interleaved state (x_1, v_1, x_2, v_2, ...) and band Jacobian of the tether model;
@@ -13,8 +13,8 @@
 #include <string>
 #include <vector>
 
-#include "solver/errors.hpp"
-#include "solver/time_integrator.hpp"
+#include "solver/input/errors.hpp"
+#include "solver/integration/time_integrator.hpp"
 
 using namespace hawser;
 

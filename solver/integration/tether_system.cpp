@@ -1,0 +1,295 @@
+#include "solver/integration/tether_system.hpp"
+
+#include <Eigen/LU>
+#include <algorithm>
+
+namespace hawser {
+
+TetherSystem::TetherSystem(const TetherModel& model)
+    : model_(model),
+      forces_(model.forces()),
+      layout_(1, model.far_end ? model.nodes() - 2 : model.nodes() - 1),
+      diag_(model.mesh.node_mass),
+      inverse_mass_(model.mesh.node_mass.cwiseInverse()),
+      off_(Eigen::VectorXd::Zero(model.nodes())),
+      thomas_c_(model.nodes()),
+      x_(3, model.nodes()),
+      v_(3, model.nodes()),
+      f_(3, model.nodes()),
+      jac_(model.nodes()),
+      newton_jac_(model.nodes()),
+      blocks_(model.nodes()),
+      work_(model.nodes()) {
+  for (double a : model.mesh.element_area) capacity_.push_back(a * model.ultimate_strength_pa);
+}
+
+void TetherSystem::node_state(double t, const double* y, Matrix3X& x, Matrix3X& v) const {
+  const std::size_t n = model_.nodes();
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  x.resize(3, n);
+  v.resize(3, n);
+  const Matrix3X& x_eq = model_.mesh.position;
+  // Prescribed nodes (the anchor, a held far end) from their motions.
+  x.col(0) = x_eq.col(0) + model_.anchor->displacement(t);
+  v.col(0) = model_.anchor->velocity(t);
+  if (model_.far_end) {
+    x.col(n - 1) = x_eq.col(n - 1) + model_.far_end->displacement(t);
+    v.col(n - 1) = model_.far_end->velocity(t);
+  }
+  // Free nodes: equilibrium plus displacement, and the velocity, in one pass on the
+  // column-major storage (3 values per node).
+  const double* xe = x_eq.data() + 3 * first;
+  double* xp = x.data() + 3 * first;
+  double* vp = v.data() + 3 * first;
+  for (std::size_t i = 0, free = last + 1 - first; i < free; ++i) {
+    const double* yk = y + StateLayout::kPerNode * i;
+    for (int a = 0; a < 3; ++a) {
+      xp[3 * i + a] = xe[3 * i + a] + yk[a];
+      vp[3 * i + a] = yk[3 + a];
+    }
+  }
+}
+
+void TetherSystem::rhs(double t, const double* y, double* ydot) {
+  node_state(t, y, x_, v_);
+  const TetherState s{t, x_, v_, model_.mesh.node_mass};
+  f_.setZero();
+  double dissipation = 0.0;
+  for (const ForceModel* m : forces_) dissipation += m->add_forces_and_dissipation(s, f_);
+  assemble_mass(t);
+  solve_mass(f_);  // f_ now holds the accelerations
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  const double* vp = v_.data() + 3 * first;
+  const double* ap = f_.data() + 3 * first;
+  for (std::size_t i = 0, free = last + 1 - first; i < free; ++i) {
+    double* dk = ydot + StateLayout::kPerNode * i;
+    for (int a = 0; a < 3; ++a) {
+      dk[a] = vp[3 * i + a];
+      dk[3 + a] = ap[3 * i + a];
+    }
+  }
+  if (model_.climbers) {
+    const TetherState with_a{t, x_, v_, model_.mesh.node_mass, &f_};
+    ydot[layout_.drive_work()] = model_.climbers->drive_power(with_a);
+  } else {
+    ydot[layout_.drive_work()] = 0.0;
+  }
+  ydot[layout_.dissipated_energy()] = dissipation;
+  // Torque about z of the anchor's pull on node 1, -T0 n0 applied at x_1 (equal to its
+  // moment at x_0, the force being along the element).
+  const Eigen::Vector3d d0 = x_.col(1) - x_.col(0);
+  const double l0 = d0.norm();
+  const double tension0 = model_.bars->tension(s, 0);
+  const Eigen::Vector3d pull_on_tether = -tension0 * d0 / l0;
+  ydot[layout_.anchor_angular_impulse()] = x_(0, 0) * pull_on_tether.y() - x_(1, 0) * pull_on_tether.x();
+}
+
+void TetherSystem::jacobian(double t, const double* y, const double*, const BandJacobian& j) {
+  node_state(t, y, x_, v_);
+  const TetherState s{t, x_, v_, model_.mesh.node_mass};
+  jac_.set_zero();
+  for (const ForceModel* m : forces_) m->add_jacobian(s, jac_);
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  // With climbers the exact J = M^-1 dF/dy reaches beyond the band; this band form divides
+  // by the diagonal of M only. The integrator uses the exact structured Newton solver
+  // (newton_*) instead; the band form serves generic solvers and checks.
+  assemble_mass(t);
+  for (std::size_t k = first; k <= last; ++k) {
+    const double inv_m = 1.0 / diag_[k];
+    for (int a = 0; a < 3; ++a) j(layout_.u(k, a), layout_.v(k, a)) = 1.0;
+    const std::size_t lo = std::max(first, k - 1), hi = std::min(last, k + 1);
+    for (std::size_t q = lo; q <= hi; ++q) {
+      const Eigen::Matrix3d& dx = jac_.dx(k, q);
+      const Eigen::Matrix3d& dv = jac_.dv(k, q);
+      for (int a = 0; a < 3; ++a)
+        for (int b = 0; b < 3; ++b) {
+          j(layout_.v(k, a), layout_.u(q, b)) = dx(a, b) * inv_m;
+          j(layout_.v(k, a), layout_.v(q, b)) = dv(a, b) * inv_m;
+        }
+    }
+  }
+  // The quadrature rows stay zero: nothing depends on the quadratures, and their own
+  // Newton update is exact given the others.
+}
+
+void TetherSystem::roots(double t, const double* y, double* g) {
+  node_state(t, y, x_, v_);
+  const TetherState s{t, x_, v_, model_.mesh.node_mass};
+  g[0] = model_.bars->rupture_indicator(s, capacity_);
+}
+
+TetherDiagnostics TetherSystem::diagnose(double t, const double* y) const {
+  Matrix3X x, v;
+  node_state(t, y, x, v);
+  const TetherState s{t, x, v, model_.mesh.node_mass};
+  TetherDiagnostics d;
+  model_.bars->tensions(s, d.tension_n);
+  d.strain_j = model_.bars->energy(s);
+  for (const auto& b : model_.body) d.potential_j += b->energy(s);
+  const double w = model_.spin_rate_rad_s;
+  for (std::size_t k = 0; k < model_.nodes(); ++k) {
+    const double m = model_.mesh.node_mass[k];
+    d.kinetic_j += 0.5 * m * v.col(k).squaredNorm();
+    if (layout_.is_free(k))
+      d.angular_momentum_z +=
+          m * (x(0, k) * v(1, k) - x(1, k) * v(0, k) + w * (x(0, k) * x(0, k) + x(1, k) * x(1, k)));
+  }
+  d.dissipated_j = y[layout_.dissipated_energy()];
+  d.anchor_angular_impulse = y[layout_.anchor_angular_impulse()];
+  d.drive_work_j = y[layout_.drive_work()];
+  if (model_.climbers) {
+    d.climber_j = model_.climbers->climber_energy(s);
+    d.angular_momentum_z += model_.climbers->climber_angular_momentum(s, w);
+  }
+  const Eigen::Vector3d d0 = x.col(1) - x.col(0);
+  d.anchor_force_n = d.tension_n[0] * d0 / d0.norm();
+  for (std::size_t e = 0; e < d.tension_n.size(); ++e) {
+    const double ratio = d.tension_n[e] / model_.mesh.element_area[e] / model_.ultimate_strength_pa;
+    if (ratio > d.max_stress_ratio) {
+      d.max_stress_ratio = ratio;
+      d.max_stress_element = e;
+    }
+    if (d.tension_n[e] == 0.0) ++d.slack_elements;
+  }
+  return d;
+}
+
+}  // namespace hawser
+
+namespace hawser {
+
+void TetherSystem::newton_jacobian(double t, const double* y) {
+  newton_t_ = t;
+  node_state(t, y, x_, v_);
+  const TetherState s{t, x_, v_, model_.mesh.node_mass};
+  newton_jac_.set_zero();
+  for (const ForceModel* m : forces_) m->add_jacobian(s, newton_jac_);
+}
+
+void TetherSystem::newton_factor(double gamma) {
+  newton_gamma_ = gamma;
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  const double g2 = gamma * gamma;
+  assemble_mass(newton_t_);
+  auto block = [&](std::size_t k, std::size_t j) -> Eigen::Matrix3d {
+    Eigen::Matrix3d a = -gamma * newton_jac_.dv(k, j) - g2 * newton_jac_.dx(k, j);
+    const double m = k == j ? diag_[k] : off_[std::min(k, j)];
+    a.diagonal().array() += m;
+    return a;
+  };
+  // Block Gaussian elimination: D_first = A_ff; L_k = A_{k,k-1} D_{k-1}^-1;
+  // E_{k-1} = D_{k-1}^-1 A_{k-1,k}; D_k = A_kk - A_{k,k-1} E_{k-1}.
+  for (std::size_t k = first; k <= last; ++k) {
+    NewtonBlocks& nb = blocks_[k];
+    nb.gdx_prev = k > first ? Eigen::Matrix3d(gamma * newton_jac_.dx(k, k - 1)) : Eigen::Matrix3d::Zero();
+    nb.gdx_self = gamma * newton_jac_.dx(k, k);
+    nb.gdx_next = k < last ? Eigen::Matrix3d(gamma * newton_jac_.dx(k, k + 1)) : Eigen::Matrix3d::Zero();
+    Eigen::Matrix3d d = block(k, k);
+    if (k > first) {
+      const Eigen::Matrix3d a_prev = block(k, k - 1);
+      NewtonBlocks& pb = blocks_[k - 1];
+      pb.e_next = pb.d_inv * block(k - 1, k);
+      nb.lower = a_prev * pb.d_inv;
+      d -= a_prev * pb.e_next;
+    } else {
+      nb.lower.setZero();
+    }
+    nb.d_inv = d.inverse();
+  }
+  blocks_[last].e_next.setZero();
+}
+
+void TetherSystem::newton_solve(const double* b, double* x) const {
+  using Vec3 = Eigen::Vector3d;
+  using CMap = Eigen::Map<const Vec3>;
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  const double gamma = newton_gamma_;
+  constexpr std::size_t kStride = StateLayout::kPerNode;  // per free node: u_k (3) then v_k (3)
+  // Forward pass. The reduced right-hand side (M r_v)_k + gamma sum_j dF_k/dx_j r_u,j is
+  // formed node by node and eliminated at once: z_k = r_k - L_k z_{k-1}, y_k = D_k^-1 z_k.
+  // It only reads b; the back pass writes x (which may be b) after it.
+  Vec3 z_prev = Vec3::Zero();
+  for (std::size_t k = first; k <= last; ++k) {
+    const NewtonBlocks& nb = blocks_[k];
+    const double* bk = b + kStride * (k - first);
+    Vec3 r = diag_[k] * CMap(bk + 3) + nb.gdx_self * CMap(bk);
+    if (k > first) r.noalias() += off_[k - 1] * CMap(bk - kStride + 3) + nb.gdx_prev * CMap(bk - kStride);
+    if (k < last) r.noalias() += off_[k] * CMap(bk + kStride + 3) + nb.gdx_next * CMap(bk + kStride);
+    r.noalias() -= nb.lower * z_prev;
+    z_prev = r;
+    work_[k].noalias() = nb.d_inv * r;
+  }
+  // Back pass: w_k = y_k - E_k w_{k+1}; then dv = w, du = r_u + gamma dv. It reads b at k
+  // only, so x may be b. The quadrature rows are identity.
+  Vec3 w_next = Vec3::Zero();
+  for (std::size_t k = last + 1; k-- > first;) {
+    Vec3 w = work_[k];
+    w.noalias() -= blocks_[k].e_next * w_next;
+    const double* bk = b + kStride * (k - first);
+    double* xk = x + kStride * (k - first);
+    for (int a = 0; a < 3; ++a) {
+      xk[a] = bk[a] + gamma * w[a];
+      xk[3 + a] = w[a];
+    }
+    w_next = w;
+  }
+  for (std::size_t q = layout_.dissipated_energy(); q < layout_.size(); ++q) x[q] = b[q];
+}
+
+}  // namespace hawser
+
+namespace hawser {
+
+void TetherSystem::assemble_mass(double t) {
+  for (std::size_t k : touched_) {
+    diag_[k] = model_.mesh.node_mass[k];
+    off_[k] = 0.0;
+  }
+  touched_.clear();
+  if (!model_.climbers) return;
+  for (const Attachment& at : model_.climbers->attachments(t)) {
+    const std::size_t e = at.element;
+    const double w0 = 1.0 - at.xi, w1 = at.xi;
+    diag_[e] += at.mass_kg * w0 * w0;
+    diag_[e + 1] += at.mass_kg * w1 * w1;
+    off_[e] += at.mass_kg * w0 * w1;
+    touched_.push_back(e);
+    touched_.push_back(e + 1);
+  }
+}
+
+void TetherSystem::solve_mass(Matrix3X& f) const {
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  // Prescribed nodes do not move with the forces: their accelerations are the prescribed
+  // ones (zero for fixed points), and their mass couplings drop out of the free equations.
+  for (std::size_t k = 0; k < first; ++k) f.col(k).setZero();
+  for (std::size_t k = last + 1; k < static_cast<std::size_t>(f.cols()); ++k) f.col(k).setZero();
+  if (touched_.empty()) {  // lumped masses only: a = f / m
+    double* fp = f.data();
+    for (std::size_t k = first; k <= last; ++k)
+      for (int a = 0; a < 3; ++a) fp[3 * k + a] *= inverse_mass_[k];
+    return;
+  }
+  std::size_t k = first;
+  while (k <= last) {
+    // A run k..q of free nodes joined by non-zero off-diagonals.
+    std::size_t q = k;
+    while (q < last && off_[q] != 0.0) ++q;
+    if (q == k) {
+      f.col(k) /= diag_[k];
+    } else {
+      // Thomas algorithm on the run, the same matrix for the three axes.
+      thomas_c_[k] = off_[k] / diag_[k];
+      f.col(k) /= diag_[k];
+      for (std::size_t i = k + 1; i <= q; ++i) {
+        const double denom = diag_[i] - off_[i - 1] * thomas_c_[i - 1];
+        if (i < q) thomas_c_[i] = off_[i] / denom;
+        f.col(i) = (f.col(i) - off_[i - 1] * f.col(i - 1)) / denom;
+      }
+      for (std::size_t i = q; i-- > k;) f.col(i) -= thomas_c_[i] * f.col(i + 1);
+    }
+    k = q + 1;
+  }
+}
+
+}  // namespace hawser

@@ -1,0 +1,91 @@
+#pragma once
+// The tether as an ODE system for the integrator: assembles the right-hand side and its
+// banded Jacobian from the force models (the one place this happens), following the state
+// layout of solver/integration/state_layout.hpp. Equations of motion of free node k (lumped mass m_k):
+//   u_k' = v_k,   m_k v_k' = sum of the model forces on node k.
+#include <array>
+#include <vector>
+
+#include "solver/integration/ode_system.hpp"
+#include "solver/integration/state_layout.hpp"
+#include "solver/assembly/tether_model.hpp"
+
+namespace hawser {
+
+/// Quantities derived from one state, for output and checks.
+struct TetherDiagnostics {
+  std::vector<double> tension_n;        // (N) [N]
+  double kinetic_j = 0, potential_j = 0, strain_j = 0, dissipated_j = 0;  // [J]
+  Eigen::Vector3d anchor_force_n = Eigen::Vector3d::Zero();  // pull of the tether on the anchor [N]
+  double angular_momentum_z = 0;        // of the free nodes and climbers about the spin axis, inertial [kg m^2/s]
+  double anchor_angular_impulse = 0;    // integral of the anchor's torque on the tether [N m s]
+  double climber_j = 0;                 // climbers' kinetic + potential energy [J]
+  double drive_work_j = 0;              // work done by the climbers' drives since t = 0 [J]
+  double max_stress_ratio = 0;          // max over elements of stress / ultimate strength
+  std::size_t max_stress_element = 0;
+  std::size_t slack_elements = 0;
+  Matrix3X acceleration;                // all nodes [m/s^2], filled by the run driver (outputs)
+};
+
+class TetherSystem : public OdeSystem {
+ public:
+  explicit TetherSystem(const TetherModel& model);
+
+  std::size_t size() const override { return layout_.size(); }
+  long half_bandwidth() const override { return StateLayout::kHalfBandwidth; }
+  void rhs(double t, const double* y, double* ydot) override;
+  void jacobian(double t, const double* y, const double* fy, const BandJacobian& j) override;
+  /// One root: an element reaching its ultimate strength (BarElements::rupture_indicator).
+  int num_roots() const override { return 1; }
+  void roots(double t, const double* y, double* g) override;
+
+  /// Newton systems (I - gamma J) x = b reduced to the velocity corrections: with
+  /// du = r_u + gamma dv, each free node k gives
+  ///   sum_j (m_k delta_kj I - gamma dF_k/dv_j - gamma^2 dF_k/dx_j) dv_j = m_k r_v,k + gamma sum_j dF_k/dx_j r_u,j,
+  /// a block-tridiagonal system of 3x3 blocks solved by block Gaussian elimination (block
+  /// Thomas algorithm) in O(N). The matrix is the tether's effective dynamic stiffness:
+  /// mass plus damping plus (positive) stiffness terms, so elimination without pivoting
+  /// between blocks is stable; each diagonal block is inverted exactly.
+  bool has_newton_solver() const override { return true; }
+  void newton_jacobian(double t, const double* y) override;
+  void newton_factor(double gamma) override;
+  void newton_solve(const double* b, double* x) const override;
+
+  const StateLayout& layout() const { return layout_; }
+  const TetherModel& model() const { return model_; }
+  /// Positions and velocities of all nodes at (t, y) [m, m/s].
+  void node_state(double t, const double* y, Matrix3X& x, Matrix3X& v) const;
+  TetherDiagnostics diagnose(double t, const double* y) const;
+
+ private:
+  const TetherModel& model_;
+  std::vector<const ForceModel*> forces_;  // model_.forces(), gathered once
+  StateLayout layout_;
+  /// The mass matrix per axis (the same for x, y, z): lumped node masses plus each climber's
+  /// m w w^T, so tridiagonal: diag_[k], off_[k] between k and k+1. Rebuilt for time t.
+  void assemble_mass(double t);
+  /// Solves M a = f for the free nodes, prescribed nodes having zero acceleration: a 2x2
+  /// solve per lone climber (the Sherman-Morrison formula), the tridiagonal (Thomas)
+  /// algorithm on runs of nodes coupled by several climbers; a = f / m elsewhere.
+  void solve_mass(Matrix3X& f_to_a) const;
+  Eigen::VectorXd diag_, inverse_mass_, off_;
+  std::vector<std::size_t> touched_;  // nodes whose mass entries differ from the lumped ones
+  mutable Eigen::VectorXd thomas_c_;
+  Matrix3X x_, v_, f_;    // work arrays (all nodes)
+  NodeJacobian jac_;
+  NodeJacobian newton_jac_;                 // Jacobian of the last newton_jacobian()
+  double newton_gamma_ = 0.0;
+  double newton_t_ = 0.0;                   // time of the last newton_jacobian()
+  /// The factored Newton matrix, per free node k, kept together for the two solve passes.
+  struct NewtonBlocks {
+    Eigen::Matrix3d gdx_prev, gdx_self, gdx_next;  // gamma dF_k/dx_{k-1}, dx_k, dx_{k+1} [N s/m]
+    Eigen::Matrix3d lower;                         // L_k = A_{k,k-1} D_{k-1}^-1
+    Eigen::Matrix3d d_inv;                         // D_k^-1
+    Eigen::Matrix3d e_next;                        // E_k = D_k^-1 A_{k,k+1}
+  };
+  std::vector<NewtonBlocks> blocks_;
+  std::vector<double> capacity_;      // per element: area x ultimate strength [N]
+  mutable std::vector<Eigen::Vector3d> work_;  // per free node, of newton_solve
+};
+
+}  // namespace hawser

@@ -1,0 +1,346 @@
+#include "solver/output/result_recorder.hpp"
+
+#include <cmath>
+#include <ctime>
+#include <memory>
+#include <stdexcept>
+
+#include "solver/input/errors.hpp"
+#include "solver/output/h5_reader.hpp"
+#include "solver/output/xdmf_description.hpp"
+
+namespace hawser {
+
+namespace {
+
+// Fields of RunSummary kept in /checkpoint, so a resumed run's summary continues this one's.
+struct SummaryReal {
+  const char* name;
+  double RunSummary::*field;
+};
+struct SummaryCount {
+  const char* name;
+  std::size_t RunSummary::*field;
+};
+const SummaryReal kSummaryReals[] = {
+    {"peak_tension_n", &RunSummary::peak_tension_n},
+    {"peak_tension_time_s", &RunSummary::peak_tension_time_s},
+    {"min_safety_factor", &RunSummary::min_safety_factor},
+    {"min_safety_factor_time_s", &RunSummary::min_safety_factor_time_s},
+    {"peak_east_west_m", &RunSummary::peak_east_west_m},
+    {"peak_east_west_time_s", &RunSummary::peak_east_west_time_s},
+    {"peak_north_south_m", &RunSummary::peak_north_south_m},
+    {"peak_north_south_time_s", &RunSummary::peak_north_south_time_s},
+    {"first_slack_time_s", &RunSummary::first_slack_time_s},
+};
+const SummaryCount kSummaryCounts[] = {
+    {"outputs", &RunSummary::outputs},
+    {"peak_tension_element", &RunSummary::peak_tension_element},
+    {"min_safety_factor_element", &RunSummary::min_safety_factor_element},
+    {"peak_east_west_node", &RunSummary::peak_east_west_node},
+    {"peak_north_south_node", &RunSummary::peak_north_south_node},
+    {"max_slack_elements", &RunSummary::max_slack_elements},
+};
+const char* const kCheckpoint = "/checkpoint";
+
+std::string xdmf_path(const std::string& h5_path) {
+  const auto dot = h5_path.rfind('.');
+  const auto slash = h5_path.rfind('/');
+  const bool has_ext = dot != std::string::npos && (slash == std::string::npos || dot > slash);
+  return (has_ext ? h5_path.substr(0, dot) : h5_path) + ".xmf";
+}
+
+H5Writer open_writer(const std::string& path, const Scenario& sc, const ResumePoint* resume) {
+  H5Writer::Options o;
+  o.deflate_level = sc.output.deflate_level;
+  return resume ? H5Writer::resume(path, o, "/time") : H5Writer::create(path, o);
+}
+
+}  // namespace
+
+ResumePoint read_resume_point(const std::string& path) {
+  const auto refuse = [&path](const std::string& why) {
+    return InputError("error: " + path + ": cannot resume: " + why + "\n");
+  };
+  std::unique_ptr<H5Reader> file;
+  try {
+    file = std::make_unique<H5Reader>(path);
+  } catch (const LibraryError&) {
+    throw refuse("not a readable HDF5 file");
+  }
+  if (!file->has(kCheckpoint))
+    throw refuse("it holds no checkpoint (a finished run, or not a hawser result file)");
+  if (!file->has("/input/scenario")) throw refuse("no /input/scenario");
+  ResumePoint p;
+  p.scenario_text = file->text("/input/scenario");
+  RunCheckpoint& c = p.checkpoint;
+  c.time_s = file->attribute_double(kCheckpoint, "time_s");
+  c.next_output = static_cast<long>(file->attribute_integer(kCheckpoint, "next_output"));
+  c.state = file->doubles(std::string(kCheckpoint) + "/state");
+  p.model_peaks = file->doubles(std::string(kCheckpoint) + "/model_peaks");
+  const std::string g = std::string(kCheckpoint) + "/summary";
+  for (const SummaryReal& f : kSummaryReals) c.summary.*f.field = file->attribute_double(g, f.name);
+  for (const SummaryCount& f : kSummaryCounts)
+    c.summary.*f.field = static_cast<std::size_t>(file->attribute_integer(g, f.name));
+  const std::vector<double> rt = file->doubles(g + "/rupture_time");
+  const std::vector<long long> re = file->integers(g + "/rupture_element");
+  const std::vector<double> rs = file->doubles(g + "/rupture_stress");
+  for (std::size_t i = 0; i < rt.size() && i < re.size() && i < rs.size(); ++i)
+    c.summary.ruptures.push_back({rt[i], static_cast<std::size_t>(re[i]), rs[i]});
+  p.times_s = file->doubles("/time");
+  if (p.times_s.size() != c.summary.outputs)
+    throw refuse("its checkpoint does not match its time series");
+  return p;
+}
+
+ResultRecorder::ResultRecorder(const std::string& path, const Scenario& sc, const TetherModel& model,
+                               std::vector<std::size_t> nodes, const ResumePoint* resume)
+    : path_(path), file_(open_writer(path, sc, resume)), model_(model), nodes_(std::move(nodes)) {
+  write_fixed(sc, model);
+  const std::size_t n = model.elements(), k = nodes_.size();
+  time_ = file_.create_series("/time", {}, "s");
+  position_ = file_.create_series("/nodes/position", {k, 3}, "m");
+  velocity_ = file_.create_series("/nodes/velocity", {k, 3}, "m/s");
+  tension_ = file_.create_series("/elements/tension", {n}, "N");
+  kinetic_ = file_.create_series("/energy/kinetic", {}, "J");
+  potential_ = file_.create_series("/energy/potential", {}, "J");
+  strain_ = file_.create_series("/energy/strain", {}, "J");
+  dissipated_ = file_.create_series("/energy/dissipated", {}, "J");
+  angular_momentum_ = file_.create_series("/energy/angular_momentum_z", {}, "kg m^2/s");
+  anchor_force_ = file_.create_series("/anchor/force", {3}, "N");
+  angular_impulse_ = file_.create_series("/anchor/angular_impulse_z", {}, "N m s");
+  // Time histories the force models offer (wind, drag, tides, climbers, ...).
+  std::size_t peak_index = 0;
+  for (const ForceModel* m : model.forces()) {
+    ModelSeries ms{m, m->output_fields(nodes_), {}, {}};
+    for (const OutputField& f : ms.fields) {
+      std::vector<hsize_t> dims(f.row_dims.begin(), f.row_dims.end());
+      ms.ids.push_back(file_.create_series(f.path, dims, f.units));
+      ms.peaks.push_back(resume && peak_index < resume->model_peaks.size()
+                             ? resume->model_peaks[peak_index]
+                             : 0.0);
+      ++peak_index;
+    }
+    if (!ms.fields.empty()) model_series_.push_back(std::move(ms));
+  }
+  if (resume) {
+    if (peak_index != resume->model_peaks.size())
+      throw InputError("error: " + path + ": cannot resume: its checkpoint has other outputs "
+                       "(not the same run)\n");
+    times_ = resume->times_s;
+    const std::time_t now = std::time(nullptr);
+    char stamp[64];
+    std::strftime(stamp, sizeof stamp, "%Y-%m-%dT%H:%M:%SZ", std::gmtime(&now));
+    file_.set_attribute("/", "resumed", stamp);
+    file_.set_attribute("/", "resumed_from_time_s", resume->checkpoint.time_s);
+  }
+}
+
+void ResultRecorder::write_fixed(const Scenario& sc, const TetherModel& model) {
+  const std::size_t n = model.elements(), nn = model.nodes(), k = nodes_.size();
+  file_.set_attribute("/", "format", "hawser-timehistory");
+  file_.set_attribute("/", "format_version", 1);
+  file_.set_attribute("/", "program_version", HAWSER_VERSION);
+  file_.set_attribute("/", "status", "running");
+  file_.set_attribute("/", "scenario_name", sc.name);
+  file_.set_attribute("/", "frame",
+                      sc.field.uniform ? "test bench: x along the cable from node 0, no rotation"
+                                       : "planet-centred, rotating with the planet: x up at the anchor, y east, z north");
+  const std::time_t now = std::time(nullptr);
+  char stamp[64];
+  std::strftime(stamp, sizeof stamp, "%Y-%m-%dT%H:%M:%SZ", std::gmtime(&now));
+  file_.set_attribute("/", "created", stamp);
+  file_.write_string("/input/scenario", sc.text_as_run);
+  file_.set_attribute("/input/scenario", "units", "1");  // text: every dataset states its units
+  file_.set_attribute("/input/scenario", "content", "the scenario as run (YAML), after --set");
+
+  file_.write_array("/mesh/s0", {nn}, model.equilibrium.s0_m.data(), "m");
+  file_.write_array("/mesh/node_mass", {nn}, model.mesh.node_mass.data(), "kg");
+  file_.write_array("/mesh/element_area", {n}, model.mesh.element_area.data(), "m^2");
+  file_.write_array("/mesh/element_L0", {n}, model.equilibrium.l0_m.data(), "m");
+  file_.set_attribute("/mesh", "counterweight_mass_kg", model.mesh.counterweight_mass);
+  file_.set_attribute("/mesh", "reference_radius_m", model.reference_radius_m);
+  file_.set_attribute("/mesh", "ultimate_strength_pa", model.ultimate_strength_pa);
+  // Eigen stores (3, N+1) column-major: that is (N+1, 3) row-major, as the contract wants.
+  file_.write_array("/equilibrium/position", {nn, 3}, model.mesh.position.data(), "m");
+  file_.write_array("/equilibrium/tension", {n}, model.equilibrium.tension_n.data(), "N");
+  // The static state above is the as-built tether under the load case named here;
+  // /mesh keeps the as-built (unloaded) geometry and tensions the L0 were made for.
+  file_.set_attribute("/equilibrium", "load_case", model.equilibrium.load_case);
+  file_.set_attribute("/equilibrium", "newton_iterations", model.equilibrium.newton_iterations);
+  file_.set_attribute("/equilibrium", "load_steps", model.equilibrium.load_steps);
+  file_.set_attribute("/equilibrium", "residual_N", model.equilibrium.residual_n);
+  file_.set_attribute("/equilibrium", "fold_load_factor", model.equilibrium.fold_load_factor);
+  file_.set_attribute("/equilibrium", "relax_iterations", model.equilibrium.relax_iterations);
+  file_.write_array("/mesh/as_built_position", {nn, 3}, model.mesh.as_built_position.data(), "m");
+  file_.write_array("/mesh/as_built_tension", {n}, model.equilibrium.as_built_tension_n.data(),
+                    "N");
+  file_.set_attribute("/mesh", "as_built_counterweight_mass_kg",
+                      model.mesh.as_built_counterweight_kg);
+  std::vector<long long> idx(nodes_.begin(), nodes_.end());
+  file_.write_array("/nodes/index", {k}, idx.data(), "1");
+  // Output nodes joined in order, for viewers (the .xmf's polyline topology).
+  std::vector<long long> polyline;
+  for (std::size_t i = 0; i + 1 < k; ++i) {
+    polyline.push_back(static_cast<long long>(i));
+    polyline.push_back(static_cast<long long>(i + 1));
+  }
+  file_.write_array("/nodes/polyline", {k > 0 ? k - 1 : 0, 2}, polyline.data(), "1");
+  file_.set_attribute("/nodes/polyline", "meaning",
+                      "pairs of rows of /nodes/index joined by a straight segment (for viewers)");
+  file_.set_attribute("/energy", "meaning",
+                      "rotating-frame kinetic energy, potential of gravity and centrifugal force, strain energy "
+                      "of taut elements, energy dissipated by damping since t = 0; angular momentum of the free "
+                      "nodes about the spin axis in the inertial frame");
+  file_.set_attribute("/anchor", "meaning",
+                      "force: the pull of the tether on the anchor (element 0's tension along it); "
+                      "angular_impulse_z: time integral of the anchor's torque on the tether about the spin axis");
+  for (const ForceModel* m : model.forces())
+    for (const OutputAttribute& a : m->output_attributes()) {
+      if (a.text.empty())
+        file_.set_attribute(a.object_path, a.name, a.number);
+      else
+        file_.set_attribute(a.object_path, a.name, a.text);
+    }
+}
+
+void ResultRecorder::record(double t, const Matrix3X& x, const Matrix3X& v, const TetherDiagnostics& d) {
+  // Series are appended in creation order; /time was created first so that it is the last
+  // to become visible at a flush (see h5_writer.hpp).
+  file_.append(time_, &t, 1);
+  times_.push_back(t);
+  row_.resize(3 * nodes_.size());
+  for (std::size_t i = 0; i < nodes_.size(); ++i)
+    for (int a = 0; a < 3; ++a) row_[3 * i + a] = x(a, nodes_[i]);
+  file_.append(position_, row_.data(), 1);
+  for (std::size_t i = 0; i < nodes_.size(); ++i)
+    for (int a = 0; a < 3; ++a) row_[3 * i + a] = v(a, nodes_[i]);
+  file_.append(velocity_, row_.data(), 1);
+  file_.append(tension_, d.tension_n.data(), 1);
+  file_.append(kinetic_, &d.kinetic_j, 1);
+  file_.append(potential_, &d.potential_j, 1);
+  file_.append(strain_, &d.strain_j, 1);
+  file_.append(dissipated_, &d.dissipated_j, 1);
+  file_.append(angular_momentum_, &d.angular_momentum_z, 1);
+  file_.append(anchor_force_, d.anchor_force_n.data(), 1);
+  file_.append(angular_impulse_, &d.anchor_angular_impulse, 1);
+  if (model_series_.empty()) return;
+  const TetherState state{t, x, v, model_.mesh.node_mass, d.acceleration.cols() ? &d.acceleration : nullptr};
+  for (ModelSeries& ms : model_series_) {
+    rows_.assign(ms.fields.size(), {});
+    ms.model->sample_outputs(state, nodes_, rows_);
+    for (std::size_t i = 0; i < ms.fields.size(); ++i) {
+      std::size_t expected = 1;
+      for (std::size_t dim : ms.fields[i].row_dims) expected *= dim;
+      if (rows_[i].size() != expected)
+        throw std::logic_error(ms.model->name() + ": output " + ms.fields[i].path + " has the wrong row size");
+      for (double value : rows_[i]) ms.peaks[i] = std::max(ms.peaks[i], std::abs(value));
+      file_.append(ms.ids[i], rows_[i].data(), 1);
+    }
+  }
+}
+
+void ResultRecorder::checkpoint(const RunCheckpoint& c) {
+  const std::string g = kCheckpoint;
+  file_.erase(g);
+  file_.set_attribute(g, "meaning",
+                      "where a killed run continues (hawser run --resume): the state at the last "
+                      "output, the next output's index, the summary so far");
+  file_.set_attribute(g, "time_s", c.time_s);
+  file_.set_attribute(g, "next_output", static_cast<long long>(c.next_output));
+  file_.write_array(g + "/state", {c.state.size()}, c.state.data(), "1");
+  file_.set_attribute(g + "/state", "meaning", "the integrator's state vector (SI units per component)");
+  std::vector<double> peaks;
+  for (const ModelSeries& ms : model_series_) peaks.insert(peaks.end(), ms.peaks.begin(), ms.peaks.end());
+  file_.write_array(g + "/model_peaks", {peaks.size()}, peaks.data(), "1");
+  const std::string sg = g + "/summary";
+  for (const SummaryReal& f : kSummaryReals) file_.set_attribute(sg, f.name, c.summary.*f.field);
+  for (const SummaryCount& f : kSummaryCounts)
+    file_.set_attribute(sg, f.name, static_cast<long long>(c.summary.*f.field));
+  std::vector<double> rt, rs;
+  std::vector<long long> re;
+  for (const RuptureEvent& r : c.summary.ruptures) {
+    rt.push_back(r.time_s);
+    re.push_back(static_cast<long long>(r.element));
+    rs.push_back(r.stress_pa);
+  }
+  file_.write_array(sg + "/rupture_time", {rt.size()}, rt.data(), "s");
+  file_.write_array(sg + "/rupture_element", {re.size()}, re.data(), "1");
+  file_.write_array(sg + "/rupture_stress", {rs.size()}, rs.data(), "Pa");
+}
+
+void ResultRecorder::flush() {
+  file_.flush();
+  publish_xdmf();
+}
+
+void ResultRecorder::publish_xdmf() const {
+  const std::size_t slash = path_.find_last_of('/');
+  XdmfContent c;
+  c.h5_name = slash == std::string::npos ? path_ : path_.substr(slash + 1);
+  c.rows = times_.size();
+  c.points = nodes_.size();
+  c.elements = model_.elements();
+  c.ultimate_strength_pa = model_.ultimate_strength_pa;
+  c.times_s = times_.data();
+  hawser::write_xdmf(xdmf_path(path_), c);
+}
+
+void ResultRecorder::finish(const RunSummary& s) {
+  const std::string g = "/summary";
+  file_.set_attribute(g, "status", s.status);
+  file_.set_attribute(g, "message", s.message);
+  file_.set_attribute(g, "end_time_s", s.end_time_s);
+  file_.set_attribute(g, "wall_time_s", s.wall_s);
+  file_.set_attribute(g, "outputs", static_cast<long long>(s.outputs));
+  file_.set_attribute(g, "peak_tension_N", s.peak_tension_n);
+  file_.set_attribute(g, "peak_tension_element", static_cast<long long>(s.peak_tension_element));
+  file_.set_attribute(g, "peak_tension_time_s", s.peak_tension_time_s);
+  file_.set_attribute(g, "min_safety_factor", s.min_safety_factor);
+  file_.set_attribute(g, "min_safety_factor_element", static_cast<long long>(s.min_safety_factor_element));
+  file_.set_attribute(g, "min_safety_factor_time_s", s.min_safety_factor_time_s);
+  file_.set_attribute(g, "peak_east_west_m", s.peak_east_west_m);
+  file_.set_attribute(g, "peak_east_west_node", static_cast<long long>(s.peak_east_west_node));
+  file_.set_attribute(g, "peak_east_west_time_s", s.peak_east_west_time_s);
+  file_.set_attribute(g, "peak_north_south_m", s.peak_north_south_m);
+  file_.set_attribute(g, "peak_north_south_node", static_cast<long long>(s.peak_north_south_node));
+  file_.set_attribute(g, "peak_north_south_time_s", s.peak_north_south_time_s);
+  file_.set_attribute(g, "max_slack_elements", static_cast<long long>(s.max_slack_elements));
+  file_.set_attribute(g, "first_slack_time_s", s.first_slack_time_s);
+  file_.set_attribute(g, "ruptures", static_cast<long long>(s.ruptures.size()));
+  for (const ModelSeries& ms : model_series_)
+    for (std::size_t i = 0; i < ms.fields.size(); ++i)
+      if (!ms.fields[i].summary_peak.empty()) file_.set_attribute(g, ms.fields[i].summary_peak, ms.peaks[i]);
+  if (!s.ruptures.empty()) {
+    std::vector<double> t, st;
+    std::vector<long long> el;
+    for (const auto& r : s.ruptures) {
+      t.push_back(r.time_s);
+      el.push_back(static_cast<long long>(r.element));
+      st.push_back(r.stress_pa);
+    }
+    file_.write_array("/summary/rupture_time", {t.size()}, t.data(), "s");
+    file_.write_array("/summary/rupture_element", {el.size()}, el.data(), "1");
+    file_.write_array("/summary/rupture_stress", {st.size()}, st.data(), "Pa");
+  }
+  file_.set_attribute(g, "steps", s.stats.steps);
+  file_.set_attribute(g, "rhs_evals", s.stats.rhs_evals);
+  file_.set_attribute(g, "jac_evals", s.stats.jac_evals);
+  file_.set_attribute(g, "linear_setups", s.stats.linear_setups);
+  file_.set_attribute(g, "error_test_failures", s.stats.error_test_failures);
+  file_.set_attribute(g, "nonlinear_iterations", s.stats.nonlinear_iterations);
+  file_.set_attribute(g, "nonlinear_failures", s.stats.nonlinear_failures);
+  file_.set_attribute(g, "root_evals", s.stats.root_evals);
+  file_.set_attribute(g, "last_step_s", s.stats.last_step_s);
+  if (s.status == "failed") {
+    file_.set_attribute(g, "failure_message", s.message);
+    file_.set_attribute(g, "failure_time_s", s.end_time_s);
+    file_.set_attribute(g, "failure_node", static_cast<long long>(s.failure_node));
+  }
+  file_.set_attribute("/", "status", s.status);
+  file_.erase(kCheckpoint);  // a finished run is not resumed
+  file_.close();
+  publish_xdmf();
+}
+
+}  // namespace hawser
