@@ -31,7 +31,8 @@ class Validator {
  public:
   Validator(const KeyReference& ref, std::vector<Problem>& problems) : ref_(ref), problems_(problems) {}
 
-  /// `origin` maps display paths given by --set to their text; `where_file` names the file.
+  /// `origin` maps display paths given or created by --set to its text (key.path=value);
+  /// `where_file` names the file.
   void validate_root(const YAML::Node& root, const std::string& where_file,
                      const std::map<std::string, std::string>& origin) {
     origin_ = &origin;
@@ -53,7 +54,7 @@ class Validator {
   std::string where(const std::string& display, const YAML::Node& node) const {
     for (const auto& o : *origin_)
       if (display == o.first || display.rfind(o.first + ".", 0) == 0 || display.rfind(o.first + "[", 0) == 0)
-        return "--set " + o.first + "=" + o.second;
+        return "--set " + o.second;
     if (node.Mark().is_null()) return file_;
     return location(node_file(node), node.Mark());
   }
@@ -346,17 +347,35 @@ class Validator {
   std::map<std::string, YAML::Node> resolved_;  // display path of a named entry -> its table node
 };
 
+/// No key of the reference is nested deeper than a few levels; a --set path longer than this
+/// is refused before anything is built from it (a path of 60,000 parts once exhausted the
+/// stack in the YAML library's recursive node handling).
+constexpr std::size_t kMaxPathSteps = 32;
+/// Longest --set argument accepted [characters].
+constexpr std::size_t kMaxSetLength = 4096;
+/// List indices up to this many digits (no list holds 10^9 items; longer ones overflow).
+constexpr std::size_t kMaxIndexDigits = 9;
+
 /// Sets `value` at `path` in `root`: dotted keys, each optionally followed by list indices
 /// ("climbers[0].mass", "environment.gusts[1].onset"), creating maps as needed but never
-/// list items. Returns "" or why it could not.
-std::string set_path(YAML::Node root, const std::string& path, const YAML::Node& value) {
+/// list items. Returns "" or why it could not. `created` receives the paths of the maps and
+/// keys it added (for locating problems in them on the command line).
+std::string set_path(YAML::Node root, const std::string& path, const YAML::Node& value,
+                     std::vector<std::string>* created) {
   struct Step {
     std::string key;          // a map key, or "" for a list index
     std::size_t index = 0;
   };
+  if (path.empty() || path.front() == '.' || path.back() == '.' ||
+      path.find("..") != std::string::npos)
+    return "empty key in the path";
   std::vector<Step> steps;
-  std::stringstream ss(path);
-  for (std::string part; std::getline(ss, part, '.');) {
+  std::size_t begin = 0;
+  while (begin <= path.size()) {
+    std::size_t end = path.find('.', begin);
+    if (end == std::string::npos) end = path.size();
+    const std::string part = path.substr(begin, end - begin);
+    begin = end + 1;
     const std::size_t open = part.find('[');
     const std::string key = part.substr(0, open);
     if (key.empty()) return "empty key in the path";
@@ -366,10 +385,16 @@ std::string set_path(YAML::Node root, const std::string& path, const YAML::Node&
       const std::string digits = close == std::string::npos ? "" : part.substr(at + 1, close - at - 1);
       if (digits.empty() || digits.find_first_not_of("0123456789") != std::string::npos)
         return "a list index is written [0], [1], ... after the key";
+      if (digits.size() > kMaxIndexDigits)
+        return "list index " + digits.substr(0, 12) + (digits.size() > 12 ? "..." : "") +
+               " is too large (no list has that many items)";
       steps.push_back({"", static_cast<std::size_t>(std::stoul(digits))});
       at = close + 1;
       if (at < part.size() && part[at] != '[') return "unexpected text after ']'";
     }
+    if (steps.size() > kMaxPathSteps)
+      return "a key path has at most " + std::to_string(kMaxPathSteps) +
+             " parts (keys and list indices); no scenario key is nested that deep";
   }
   YAML::Node cur = root;
   std::string walked;
@@ -395,6 +420,7 @@ std::string set_path(YAML::Node root, const std::string& path, const YAML::Node&
       return "cannot set below a value that is not a mapping (a named planet or material must be given "
              "inline to change one property)";
     walked += (walked.empty() ? "" : ".") + st.key;
+    if (!cur[st.key]) created->push_back(walked);
     if (last) {
       cur[st.key] = value;
       return "";
@@ -435,6 +461,12 @@ ReadScenario ScenarioReader::read_text(const std::string& text, std::vector<Prob
   }
   std::map<std::string, std::string> origin;
   for (const auto& o : overrides_) {
+    if (o.size() > kMaxSetLength) {
+      problems.push_back({"--set " + o.substr(0, 40) + "...", "(command line)",
+                          "longer than " + std::to_string(kMaxSetLength) +
+                              " characters; no key path and value need that much"});
+      continue;
+    }
     const auto eq = o.find('=');
     if (eq == std::string::npos || eq == 0) {
       problems.push_back({"--set " + o, "(command line)", "expected --set key.path=value"});
@@ -460,11 +492,14 @@ ReadScenario ScenarioReader::read_text(const std::string& text, std::vector<Prob
         root[head] = inline_entry;
       }
     }
-    if (const std::string why = set_path(root, path, v); !why.empty()) {
+    std::vector<std::string> created;
+    if (const std::string why = set_path(root, path, v, &created); !why.empty()) {
       problems.push_back({"--set " + o, path, why});
       continue;
     }
-    origin[path] = value;
+    origin[path] = o;
+    // Keys the --set added above its own path are located on the command line too.
+    for (const std::string& c : created) origin.emplace(c, o);
   }
   Validator val(KeyReference::builtin(), problems);
   val.validate_root(root, file_, origin);

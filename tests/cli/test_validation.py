@@ -10,6 +10,7 @@ import os
 import subprocess
 import sys
 import tempfile
+import time
 
 import h5py
 import yaml
@@ -166,6 +167,13 @@ def main():
         demo = os.path.join(a.source, "scenarios", "demo.yaml")
         for setting, words in (("climbers[3].mass=30 t", "there is no [3]"),
                                ("climbers[x].mass=30 t", "list index is written"),
+                               # a trailing dot was once taken for the key before it
+                               ("tether.safety_factor.=3", "empty key in the path"),
+                               # an index past 64 bits once gave "error: stoul" and exit 1
+                               ("climbers[99999999999999999999].mass=1 t", "too large"),
+                               # a key the --set creates is located on the command line, not at
+                               # the scenario's line 1
+                               ("colour.shade=red", "unknown key"),
                                ("mesh[0]=3", "mesh is not a list"),
                                # a climber's drag needs air (the demo has no atmosphere)
                                ("climbers[0].drag={area: 4 m^2, cd: 1.1}", "needs air")):
@@ -174,6 +182,19 @@ def main():
             r.passed += ok
             r.failed += not ok
             print(("ok  " if ok else "FAIL") + f" --set {setting}: exit {p.returncode}, {p.stderr.strip()}")
+        # A path of 60,000 parts once overflowed the stack (and took minutes): refused at once,
+        # with a message of bounded length (key paths have at most 32 parts, --set at most
+        # 4096 characters: solver/input/scenario_reader.cpp).
+        for setting in ("a." * 60000 + "b=1", "a." * 1000 + "b=1"):
+            t0 = time.monotonic()
+            p = r.run("check", demo, "--set", setting)
+            took = time.monotonic() - t0
+            ok = p.returncode == 2 and len(p.stderr) < 10000 and took < 10 and \
+                ("at most 32 parts" in p.stderr or "longer than 4096" in p.stderr)
+            r.passed += ok
+            r.failed += not ok
+            print(("ok  " if ok else "FAIL") + f" --set of {len(setting)} characters: exit "
+                  f"{p.returncode} in {took:.2f} s, {p.stderr.strip()[:160]}")
         # ... and a valid one takes effect: the scenario as run (/input/scenario) carries it.
         out = os.path.join(tmp, "set_item.h5")
         p = r.run("run", demo, "-o", out, "--set", "climbers[0].mass=30 t", "--set", "simulation.duration=1 min")
