@@ -14,6 +14,38 @@
 namespace hawser {
 namespace {
 
+/// True if `s` is well-formed UTF-8 (RFC 3629: no overlong forms, no surrogates, <= U+10FFFF).
+bool valid_utf8(const std::string& s) {
+  std::size_t i = 0;
+  while (i < s.size()) {
+    const unsigned char c = static_cast<unsigned char>(s[i]);
+    int n = 0;
+    unsigned cp = 0;
+    if (c < 0x80) {
+      ++i;
+      continue;
+    } else if ((c & 0xE0) == 0xC0) {
+      n = 1, cp = c & 0x1F;
+    } else if ((c & 0xF0) == 0xE0) {
+      n = 2, cp = c & 0x0F;
+    } else if ((c & 0xF8) == 0xF0) {
+      n = 3, cp = c & 0x07;
+    } else {
+      return false;
+    }
+    for (int k = 1; k <= n; ++k) {
+      if (i + k >= s.size()) return false;
+      const unsigned char d = static_cast<unsigned char>(s[i + k]);
+      if ((d & 0xC0) != 0x80) return false;
+      cp = (cp << 6) | (d & 0x3F);
+    }
+    static const unsigned kMin[] = {0, 0x80, 0x800, 0x10000};
+    if (cp < kMin[n] || cp > 0x10FFFF || (cp >= 0xD800 && cp <= 0xDFFF)) return false;
+    i += static_cast<std::size_t>(n) + 1;
+  }
+  return true;
+}
+
 std::string location(const std::string& file, const YAML::Mark& m) {
   if (m.is_null()) return file;
   return file + ":" + std::to_string(m.line + 1) + ":" + std::to_string(m.column + 1);
@@ -80,6 +112,14 @@ class Validator {
         problem(where(d, kv.first), d, "key given twice");
         continue;
       }
+      // A dotted key (simulation.duration: 1 min) would name the nested key and silently
+      // override it; a scenario file writes keys nested (--set takes the dotted form).
+      if (key.find_first_of(".[]") != std::string::npos) {
+        problem(where(d, kv.first), d,
+                "a key in the file is one word; write nested keys as a block (the dotted form "
+                "is for --set)");
+        continue;
+      }
       const KeySpec* spec = ref_.find(p);
       if (!spec) {
         std::string hint;
@@ -116,13 +156,15 @@ class Validator {
       case KeyType::quantity: break;
     }
     if (!node.IsScalar()) {
-      problem(w, display, "expected a single value, got a " + std::string(node.IsMap() ? "mapping" : "list"));
+      problem(w, display, "expected a single value, got " + std::string(node.IsMap()        ? "a mapping"
+                                                                        : node.IsSequence() ? "a list"
+                                                                                            : "nothing (null)"));
       return;
     }
     const std::string& s = node.Scalar();
     bool ok = true;
     switch (spec.type) {
-      case KeyType::string: v.text = s; break;
+      case KeyType::string: ok = read_string(s, display, v); break;
       case KeyType::boolean: ok = read_boolean(s, display, v); break;
       case KeyType::choice: ok = read_choice(spec, s, display, v); break;
       case KeyType::integer: ok = read_integer(spec, s, display, v); break;
@@ -187,6 +229,13 @@ class Validator {
       }
     }
     values_.set(display, v);
+  }
+
+  /// Text goes into result files as UTF-8 (HDF5 attributes readers decode): refuse anything else.
+  bool read_string(const std::string& s, const std::string& display, ScenarioValue& v) {
+    if (!valid_utf8(s)) return problem(v.where, display, "not valid UTF-8 text"), false;
+    v.text = s;
+    return true;
   }
 
   bool read_boolean(const std::string& s, const std::string& display, ScenarioValue& v) {
@@ -450,7 +499,14 @@ ReadScenario ScenarioReader::read_text(const std::string& text, std::vector<Prob
   ReadScenario out;
   YAML::Node root;
   try {
-    root = YAML::Load(text);
+    const std::vector<YAML::Node> documents = YAML::LoadAll(text);
+    if (documents.size() > 1) {
+      problems.push_back({location(file_, documents[1].Mark()), "(syntax)",
+                          "a scenario is one YAML document; this file holds " +
+                              std::to_string(documents.size()) + " (separated by ---)"});
+      return out;
+    }
+    if (!documents.empty()) root = documents.front();
   } catch (const YAML::ParserException& e) {
     problems.push_back({location(file_, e.mark), "(syntax)", "malformed YAML: " + e.msg});
     return out;

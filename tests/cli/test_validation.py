@@ -107,6 +107,37 @@ def main():
         t = mutate(GOOD, "  safety_factor: 2\n", "  safety_factor: 2\n  colour: blue\n")
         r.case("unknown key", t, [(line_of(t, "colour"), "tether.colour", ["unknown key"])])
 
+        # A dotted key in the file once named the nested key and silently overrode it.
+        t = GOOD + "mesh.elements: 7\n"
+        r.case("dotted key in the file", t, [(line_of(t, "mesh.elements"), "mesh.elements", ["one word", "nested"])])
+
+        # A second YAML document was once ignored.
+        t = GOOD + "---\nname: second document\n"
+        r.case("two documents", t, [(line_of(t, "second document"), "(syntax)", ["one YAML document", "holds 2"])])
+
+        # A key with no value was reported as "got a list".
+        t = mutate(GOOD, "  safety_factor: 2\n", "  safety_factor:\n")
+        r.case("null value", t, [(line_of(t, "safety_factor"), "tether.safety_factor", ["got nothing (null)"])])
+
+        # Text that is not UTF-8 was once accepted, and broke h5py's decoding of the attribute
+        # (RFC 3629: 0xFF never occurs in UTF-8). Written as Latin-1 so the byte stays raw.
+        t = mutate(GOOD, "name: validation base case", "name: caf\u00e9 \u00ff")
+        path = os.path.join(tmp, "latin1_name.yaml")
+        with open(path, "w", encoding="latin-1") as f:
+            f.write(t)
+        p = r.run("check", path)
+        ok = p.returncode == 2 and f"{path}:1:" in p.stderr and "not valid UTF-8" in p.stderr
+        r.passed += ok
+        r.failed += not ok
+        print(("ok   " if ok else "FAIL ") + f"name not in UTF-8: exit {p.returncode}, {p.stderr.strip()}")
+        path = os.path.join(tmp, "utf8_name.yaml")
+        with open(path, "w", encoding="utf-8") as f:
+            f.write(t)
+        p = r.run("check", path)
+        r.passed += p.returncode == 0
+        r.failed += p.returncode != 0
+        print(("ok   " if p.returncode == 0 else "FAIL ") + f"the same name in UTF-8 passes: {p.stderr.strip()}")
+
         t = mutate(GOOD, "  youngs_modulus: 630 GPa\n", "")
         r.case("missing physical property", t, [(line_of(t, "material:"), "material.youngs_modulus", ["missing"])])
 
