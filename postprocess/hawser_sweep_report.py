@@ -31,7 +31,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 import hawser_report  # noqa: E402
 
 # Always compared when recorded; units from the name's ending.
-STANDARD_METRICS = ["min_safety_factor", "peak_east_west_m", "peak_north_south_m", "peak_tension_N"]
+STANDARD_METRICS = ["min_safety_factor", "peak_east_west_m", "peak_north_south_m", "peak_tension_n"]
 NUMBER = re.compile(r"^\s*([-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?)\s*(.*)$")
 
 

@@ -230,7 +230,7 @@ def main():
                 summary = f["summary"].attrs
                 for n in names:
                     g = f["climbers"][n]
-                    for field, attr in (("drive_force", f"climber_{n}_peak_drive_force_N"),
+                    for field, attr in (("drive_force", f"climber_{n}_peak_drive_force_n"),
                                         ("lateral_offset", f"climber_{n}_peak_lateral_offset_m")):
                         data = np.abs(g[field][:])
                         data = data[np.isfinite(data)]

@@ -66,7 +66,7 @@ TIME_SERIES = ["/time", "/nodes/position", "/nodes/velocity", "/elements/tension
 
 # /summary attributes the contract names (architecture.md: peak tension and where and when,
 # minimum safety factor, peak east-west and north-south deflections, solver statistics).
-SUMMARY_ATTRS = ["peak_tension_N", "peak_tension_element", "peak_tension_time_s", "min_safety_factor",
+SUMMARY_ATTRS = ["peak_tension_n", "peak_tension_element", "peak_tension_time_s", "min_safety_factor",
                  "peak_east_west_m", "peak_east_west_node", "peak_east_west_time_s", "peak_north_south_m",
                  "peak_north_south_node", "peak_north_south_time_s", "steps", "rhs_evals", "jac_evals",
                  "error_test_failures", "nonlinear_failures"]
@@ -234,10 +234,10 @@ def check_result_file(c, h, demo_path, design):
         if not missing:
             tension = f["/elements/tension"][:]
             it, ie = np.unravel_index(np.argmax(tension), tension.shape)
-            c.check(math.isclose(s["peak_tension_N"], tension[it, ie], rel_tol=1e-12)
+            c.check(math.isclose(s["peak_tension_n"], tension[it, ie], rel_tol=1e-12)
                     and s["peak_tension_element"] == ie and s["peak_tension_time_s"] == t[it],
                     "summary peak tension, element and time = those of /elements/tension",
-                    f"{s['peak_tension_N']} el {s['peak_tension_element']} t {s['peak_tension_time_s']} vs "
+                    f"{s['peak_tension_n']} el {s['peak_tension_element']} t {s['peak_tension_time_s']} vs "
                     f"{tension[it, ie]} el {ie} t {t[it]}")
             area = f["/mesh/element_area"][:]
             sf = np.min(design["ultimate_strength_pa"] * area / np.maximum(tension, 1e-300))

@@ -236,7 +236,7 @@ TEST_CASE("drag on a planet node: density of the 1976 standard and the wind's EN
   const auto fields = drag->output_fields(nodes);
   REQUIRE(fields.size() == 4);
   CHECK(fields[0].path == "/environment/wind");
-  CHECK(fields[3].summary_peak == "peak_aerodynamic_load_N_per_m");
+  CHECK(fields[3].summary_peak == "peak_aerodynamic_load_n_per_m");
   std::vector<std::vector<double>> rows(fields.size());
   drag->sample_outputs(s, nodes, rows);
   REQUIRE(rows[0].size() == 9);
