@@ -132,7 +132,7 @@ def main():
             d = json.loads(p.stdout)
             c.check(d["stiffness_negative_directions"] == 0, "demo: positive definite tangent stiffness")
             for m in d["modes"]:
-                lam = complex(m["eigenvalue_real_1_s"], m["eigenvalue_imag_1_s"])
+                lam = complex(m["eigenvalue_real_per_s"], m["eigenvalue_imag_per_s"])
                 c.check(abs(m["period_s"] * lam.imag / (2 * math.pi) - 1) < 1e-12, f"demo mode {m['index']}: period")
                 c.check(abs(m["damping_ratio"] + lam.real / abs(lam)) < 1e-15, f"demo mode {m['index']}: damping ratio")
                 c.check(0 <= m["largest_motion_altitude_m"] <= 1.0e8 + 1, f"demo mode {m['index']}: altitude on the tether")
