@@ -324,7 +324,8 @@ def anchor_force_figure(time_s, force_N):
     axes[0].set_title("Anchor force (/anchor/force)")
     hf, hu = si_scale(f[:, 1:], "N")
     axes[1].plot(t, f[:, 1] / hf, color="tab:red", label="east (+y)")
-    axes[1].plot(t, f[:, 2] / hf, color="tab:green", label="north (+z)")
+    if np.nanmax(np.abs(f[:, 2])) > 0.0:  # a planar run has none: no line of zeros
+        axes[1].plot(t, f[:, 2] / hf, color="tab:green", label="north (+z)")
     axes[1].set_ylabel(f"horizontal [{hu}]")
     axes[1].set_xlabel(f"time [{tu}]")
     for ax in axes:

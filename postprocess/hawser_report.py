@@ -380,6 +380,7 @@ body { font-family: sans-serif; max-width: 60em; margin: 1.5em auto; padding: 0 
 table { border-collapse: collapse; margin: 0.5em 0 1em 0; }
 td, th { border: 1px solid #ccc; padding: 0.2em 0.6em; text-align: left; }
 td.num { text-align: right; font-family: monospace; }
+td.sub { padding-left: 2em; color: #444; }
 figure { margin: 1.5em 0; } figure img { max-width: 100%; }
 pre { background: #f4f4f4; padding: 0.8em; overflow-x: auto; font-size: 90%; }
 .missing { color: #a40; }
@@ -439,7 +440,9 @@ def _summary_table(rows, convert, head=("Quantity", "Value", "Unit")):
            "<tr>" + "".join(f"<th>{h}</th>" for h in head) + "</tr>"]
     for key, label, value, units in rows:
         data, shown, unit = _value_cell(key, value, units, convert)
-        out.append(f"<tr{data}><td>{html.escape(label)}</td><td class=\"num\">{shown}</td>"
+        sub = " class=\"sub\"" if label.startswith("  ") else ""  # where, when: under it
+        out.append(f"<tr{data}><td{sub}>{html.escape(label.strip())}</td>"
+                   f"<td class=\"num\">{shown}</td>"
                    f"<td class=\"unit\">{html.escape(unit)}</td></tr>")
     out.append("</table>")
     return "\n".join(out)
@@ -511,7 +514,10 @@ def build_html(ctx, drawn, left_out):
                    "element or node in the static state the run started from. Forces in kN, "
                    "lengths in km, times in h (small values in N, m, s).</p>")
         for sec in ("margins", "peaks", "run"):
-            rows = [row for row in sections[sec] if row[0] != "failure_message"]
+            # Indices of elements and nodes stay in the table of values as stored: here the
+            # altitude says where.
+            rows = [row for row in sections[sec] if row[0] != "failure_message"
+                    and not row[0].endswith(("_element", "_node"))]
             if rows:
                 out.append(f"<h3>{SECTION_TITLES[sec]}</h3>")
                 out.append(_summary_table(rows, convert=True))

@@ -282,7 +282,7 @@ def test_full_report(tmp):
           'data-file-value="123456.0"><td>Peak tension</td><td class="num">123.456</td>'
           '<td class="unit">kN</td>' in text)
     check("its time, under an hour, in s", 'data-key="peak_tension_time_s" data-file-units="s" '
-          'data-file-value="1234.5"><td>  when</td><td class="num">1234.5</td>'
+          'data-file-value="1234.5"><td class="sub">when</td><td class="num">1234.5</td>'
           '<td class="unit">s</td>' in text)
     check("status 'complete' shown", "Run status: complete" in text)
     check("scenario name in the title", "<h1>hawser report: synthetic ribbon</h1>" in text)
