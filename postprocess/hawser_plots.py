@@ -424,6 +424,7 @@ def safety_margin_figure(element_altitude_km, stress_max_pa, stress_eq_pa, sf_mi
     if design_sf:
         ax.axvline(ultimate_pa / design_sf / sf_, color="k", linestyle="--", linewidth=1.0,
                    label=f"design stress (ultimate / {design_sf:g})")
+    ax.set_xlim(0.0, 1.1 * max(ultimate_pa, float(np.nanmax(stress_max_pa))) / sf_)
     ax.set_xlabel(f"stress [{su}]")
     ax.set_ylabel("altitude [km]")
     ax.set_title("Stress envelope", fontsize="medium")
