@@ -39,7 +39,7 @@ std::string number(double v) {
 }
 
 /// One climber entry of the `climbers:` list, in flow YAML (SI numbers unless a unit is given).
-struct ClimberSpec {
+struct CaseClimber {
   std::string name = "c";
   std::string mass = "20000";
   std::string from = "0", to = "1000 km", direction = "up";
@@ -53,7 +53,7 @@ struct ClimberSpec {
   }
 };
 
-std::string climbers_override(const std::vector<ClimberSpec>& cs) {
+std::string climbers_override(const std::vector<CaseClimber>& cs) {
   std::string s = "climbers=[";
   for (std::size_t i = 0; i < cs.size(); ++i) s += (i ? ", " : "") + cs[i].yaml();
   return s + "]";
@@ -61,7 +61,7 @@ std::string climbers_override(const std::vector<ClimberSpec>& cs) {
 
 /// A small planet tether: the demo's design on `elements` elements graded from `first`, at
 /// rest (no initial displacement), with the given climbers and simulation settings.
-std::vector<std::string> small_tether(int elements, const std::string& first, const std::vector<ClimberSpec>& cs,
+std::vector<std::string> small_tether(int elements, const std::string& first, const std::vector<CaseClimber>& cs,
                                       std::vector<std::string> more) {
   std::vector<std::string> o{"mesh.elements=" + std::to_string(elements), "mesh.grading=geometric",
                              "mesh.first_element_length=" + first, "initial.displacements=[]",
@@ -299,7 +299,7 @@ TEST_CASE("at cruise the Coriolis force is 2 m Omega v: westward going up, eastw
   const double m = 500.0, v = 200 * kKmh;
   for (const char* dir : {"up", "down"}) {
     const bool up = std::string(dir) == "up";
-    ClimberSpec c;
+    CaseClimber c;
     c.mass = number(m);
     c.direction = dir;
     c.from = up ? "500 km" : "1500 km";
@@ -411,7 +411,7 @@ TEST_CASE("a climber parked on a node is that node with the climber's mass added
   for (const char* dir : {"up", "down"}) {
     // Model A: a climber parked exactly at node k's altitude until long after the run, facing
     // up (it sits on element k at xi = 0) or down (element k-1 at xi = 1).
-    ClimberSpec c;
+    CaseClimber c;
     c.mass = number(m);
     c.from = number(altitude_k);
     c.direction = dir;
@@ -519,7 +519,7 @@ TEST_CASE("a climber raised slowly gains m Omega (r2^2 - r1^2), paid by the anch
   // climber stays above element 0 (the anchor-torque quadrature sees element 0's pull only).
   // Material damping (retardation time 1 s) lets the tether settle after the climb.
   const double m = 5000.0;
-  ClimberSpec c;
+  CaseClimber c;
   c.mass = number(m);
   c.from = "300 km";
   c.to = "2300 km";
@@ -555,7 +555,7 @@ TEST_CASE("the drive's work is the change of the climber's and the tether's ener
   // drive's, whose power R . (xi' d) is integrated along the run (drive_work_j); so
   // W(t) = E(t) - E(0), with E the tether's kinetic + potential + strain energy plus the
   // climbers' kinetic + potential energy.
-  ClimberSpec c;
+  CaseClimber c;
   c.mass = "5000";
   c.from = "300 km";
   c.to = "1500 km";
@@ -652,7 +652,7 @@ TEST_CASE("with climbers the mass solve and the structured Newton solver are exa
   // the climbers' coupling through M^-1 (tether_system.cpp says so), hence the differences.
   // Two climbers share element 1 (a cluster: the tridiagonal path of the mass solve), a
   // third rides element 5 alone, all moving at t = 1 h; damping exercises dF/dv.
-  std::vector<ClimberSpec> cs(3);
+  std::vector<CaseClimber> cs(3);
   cs[0].name = "a", cs[0].from = "12000 km", cs[0].to = "20000 km", cs[0].mass = "20000";
   cs[1].name = "b", cs[1].from = "14000 km", cs[1].to = "22000 km", cs[1].mass = "7000";
   cs[2].name = "c", cs[2].from = "65000 km", cs[2].to = "58000 km", cs[2].direction = "down", cs[2].mass = "12000";
@@ -752,7 +752,7 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
   }());
   const std::vector<double> alt = reference_distance(build_model(plain).mesh);  // node altitudes [m]
   SECTION("a dwell exactly on a node, the end exactly on another") {
-    ClimberSpec c;
+    CaseClimber c;
     c.mass = "10000";
     c.from = "30 km";
     c.to = number(alt[12]);
@@ -783,7 +783,7 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
     CHECK((sample(*r, 0, last).r - r->sink.x[last].col(12)).norm() < 1e-6);
   }
   SECTION("dozens of node crossings") {
-    ClimberSpec c;
+    CaseClimber c;
     c.mass = "10000";
     c.from = "5 km";
     c.to = "2500 km";
@@ -802,7 +802,7 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
     CHECK(sample(*r, 0, r->sink.t.size() - 1).s_m == Approx(r->model.climbers->climbers()[0].profile.to()));
   }
   SECTION("two climbers on one element") {
-    std::vector<ClimberSpec> cs(2);
+    std::vector<CaseClimber> cs(2);
     cs[0].name = "lead", cs[0].from = "160 km", cs[0].to = "900 km", cs[0].mass = "8000";
     cs[1].name = "tail", cs[1].from = "150 km", cs[1].to = "890 km", cs[1].mass = "12000";
     auto o = mesh;
@@ -833,7 +833,7 @@ const Run& standard_transit(int n) {
   static std::map<int, std::unique_ptr<Run>> cache;
   auto& r = cache[n];
   if (!r) {
-    ClimberSpec c;
+    CaseClimber c;
     c.name = "kite";
     c.mass = "20 t";
     c.from = "0 km";

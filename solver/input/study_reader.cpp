@@ -1,4 +1,4 @@
-#include "solver/cli/study_reader.hpp"
+#include "solver/input/study_reader.hpp"
 
 #include <yaml-cpp/yaml.h>
 
@@ -15,8 +15,7 @@
 #include "solver/input/key_reference.hpp"
 #include "solver/input/scenario.hpp"
 #include "solver/input/scenario_reader.hpp"
-#include "solver/assembly/tether_model.hpp"
-#include "solver/cli/variant_id.hpp"
+#include "solver/input/variant_id.hpp"
 
 namespace hawser {
 namespace {
@@ -301,12 +300,12 @@ void read_ranking(const YAML::Node& root, Study& st, StudyWalker& w) {
   }
 }
 
-/// Validates a variant as `hawser check BASE --set ...` would (the keys, then the model: a
+/// Validates a variant as `hawser check BASE --set ...` would (the whole validation stage: a
 /// climber beyond the tether's top is found here, not in the run), and rewrites each "--set p=v"
 /// location in the messages to where the study wrote the value.
 void validate_variant(const Study& st, const Variant& v, std::vector<std::string>& lines) {
   try {
-    build_model(load_scenario(st.scenario, st.set_arguments(v)));
+    load_scenario(st.scenario, st.set_arguments(v));
   } catch (const InputError& e) {
     std::string msg = e.what();
     std::vector<Override> all = st.common;
