@@ -69,7 +69,7 @@ std::string default_output(const std::string& scenario) {
 }
 
 void print_summary(const RunSummary& s, const std::string& file) {
-  std::printf("hawser run: %s at t = %.6g s (%.4g h), %zu outputs, wall %.3g s\n", s.status.c_str(), s.end_time_s,
+  std::printf("hawser run: %s at t = %.6g s (%.4g h), %zu outputs, wall %.3g s\n", to_string(s.status), s.end_time_s,
               s.end_time_s / 3600.0, s.outputs, s.wall_s);
   if (!s.message.empty()) std::printf("  %s\n", s.message.c_str());
   std::printf("  solver: %ld steps, %ld rhs evaluations, %ld Jacobian evaluations, %ld linear setups,\n"
@@ -143,8 +143,8 @@ int cmd_run(const CommonOptions& opt, std::string output, const std::string& res
   const RunSummary summary = run_simulation(system, y0, ro, recorder);
   recorder.finish(summary);
   print_summary(summary, output);
-  if (summary.status == "stopped") return 3;
-  if (summary.status == "failed") return 4;
+  if (summary.status == RunStatus::stopped) return 3;
+  if (summary.status == RunStatus::failed) return 4;
   return 0;
 }
 

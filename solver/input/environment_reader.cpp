@@ -33,7 +33,7 @@ std::string fmt(double x) {
 class Keys {
  public:
   Keys(const ScenarioValues& v, std::vector<Problem>& p) : v_(v), p_(p) {}
-  bool has(const std::string& k) const { return v_.has(k) && v_.at(k).type != "invalid"; }
+  bool has(const std::string& k) const { return v_.has(k) && !v_.at(k).invalid; }
   double q(const std::string& k) const { return v_.quantity(k); }
   void error(const std::string& k, const std::string& msg) { p_.push_back({v_.where(k), k, msg}); }
   /// Exactly one of a and b (keys below `item`); returns 0 for a, 1 for b, -1 if wrong.
@@ -337,7 +337,7 @@ EnvironmentSpec read_environment(const ScenarioValues& v, const Scenario& s, dou
   env.drag_coefficient = k.has("environment.drag.cd") ? k.q("environment.drag.cd") : (ribbon ? kCdFlatPlate : kCdCylinder);
   if (!env.any_air())
     for (const char* key : {"environment.drag", "environment.winds", "environment.gusts", "environment.turbulence"})
-      if (v.has(key) && (v.at(key).type != "list" || v.integer(key) > 0))
+      if (v.has(key) && (v.at(key).type != KeyType::list || v.integer(key) > 0))
         k.error(key, "acts through drag and needs air: set environment.atmosphere (us1976 on a planet)");
   read_winds(k, env);
   read_gusts(k, env);

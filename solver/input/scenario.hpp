@@ -11,6 +11,7 @@
 #include "models/taper_design.hpp"
 #include "solver/input/climber_spec.hpp"
 #include "solver/input/environment_spec.hpp"
+#include "solver/input/integration_method.hpp"
 
 namespace hawser {
 
@@ -39,7 +40,7 @@ struct SimulationSpec {
   bool given = false;           // the scenario has a simulation block
   double duration_s = 0.0;
   double output_interval_s = 0.0;
-  std::string method;           // bdf | adams | erk
+  Method method = Method::bdf;
   double rtol = 0.0;
   double atol_position_m = 0.0;
   double atol_velocity_m_s = 0.0;

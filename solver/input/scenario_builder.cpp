@@ -5,6 +5,7 @@
 #include <sstream>
 
 #include "solver/input/climber_reader.hpp"
+#include "solver/input/integration_method.hpp"
 #include "solver/input/environment_reader.hpp"
 #include "solver/input/errors.hpp"
 #include "solver/input/scenario.hpp"
@@ -37,7 +38,7 @@ Material build_material(const ScenarioValues& v) {
 SimulationSpec build_simulation(const ScenarioValues& v) {
   SimulationSpec sim;
   sim.given = v.has("simulation");
-  sim.method = v.text("simulation.method");
+  sim.method = parse_method(v.text("simulation.method"));  // the key table allows only these
   sim.rtol = v.quantity("simulation.rtol");
   sim.atol_position_m = v.quantity("simulation.atol_position");
   sim.atol_velocity_m_s = v.quantity("simulation.atol_velocity");

@@ -95,18 +95,18 @@ class StudyWalker {
 
   void check_value(const KeySpec& spec, const YAML::Node& node, const std::string& display) {
     const KeyReference& ref = study_keys();
-    if (spec.type == "list") {
+    if (spec.type == KeyType::list) {
       if (!node.IsSequence())
         return problem(at(node), display, "expected a list (- item per line)");
       for (std::size_t i = 0; i < node.size(); ++i) {
         const std::string d = display + "[" + std::to_string(i) + "]";
         const KeySpec* item = ref.find(spec.path + "[]");
-        if (item && item->type == "map" && ref.children(item->path).empty())
+        if (item && item->type == KeyType::map && ref.children(item->path).empty())
           check_overrides(node[i], d, false);
         else
           check_map(node[i], spec.path + "[]", d);
       }
-    } else if (spec.type == "map") {
+    } else if (spec.type == KeyType::map) {
       if (ref.children(spec.path).empty())
         check_overrides(node, display,
                         spec.path == "set" || spec.path.find("[].set") != std::string::npos);
@@ -114,7 +114,7 @@ class StudyWalker {
         check_map(node, spec.path, display);
     } else if (!node.IsScalar()) {
       problem(at(node), display, "expected a single value");
-    } else if (spec.type == "choice") {
+    } else if (spec.type == KeyType::choice) {
       std::string list;
       bool ok = false;
       for (const auto& c : spec.choices) {

@@ -383,7 +383,7 @@ void ResultRecorder::publish_xdmf() const {
 void ResultRecorder::finish(const RunSummary& s) {
   const std::string g = "/summary";
   using ll = long long;
-  value(g, "status", s.status);
+  value(g, "status", std::string(to_string(s.status)));
   value(g, "message", s.message);
   value(g, "end_time_s", s.end_time_s);
   value(g, "wall_time_s", s.wall_s);
@@ -436,12 +436,12 @@ void ResultRecorder::finish(const RunSummary& s) {
   value(g, "nonlinear_failures", static_cast<ll>(s.stats.nonlinear_failures));
   value(g, "root_evals", static_cast<ll>(s.stats.root_evals));
   value(g, "last_step_s", s.stats.last_step_s);
-  if (s.status == "failed") {
+  if (s.status == RunStatus::failed) {
     value(g, "failure_message", s.message);
     value(g, "failure_time_s", s.end_time_s);
     value(g, "failure_node", static_cast<ll>(s.failure_node));
   }
-  file_.set_attribute("/", "status", s.status);
+  file_.set_attribute("/", "status", std::string(to_string(s.status)));
   file_.erase(kCheckpoint);  // a finished run is not resumed
   file_.close();
   publish_xdmf();

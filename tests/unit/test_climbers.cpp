@@ -308,7 +308,7 @@ TEST_CASE("at cruise the Coriolis force is 2 m Omega v: westward going up, eastw
                                                                               "simulation.output_interval=30 min",
                                                                               "simulation.atol_velocity=1e-4"}));
     const auto r = run(sc);
-    REQUIRE(r->summary.status == "complete");
+    REQUIRE(r->summary.status == RunStatus::complete);
     const std::size_t i = output_at(*r, 3600.0);
     const ClimberSample cs = sample(*r, 0, i);
     // Cruising: 1 h is past the 111 s ramp and before the 5 h arrival.
@@ -481,8 +481,8 @@ TEST_CASE("a climber parked on a node is that node with the climber's mass added
     };
     testing::MemorySink sa, sb;
     const RunSummary ra = run_of(sys_a, sa), rb = run_of(sys_b, sb);
-    REQUIRE(ra.status == "complete");
-    REQUIRE(rb.status == "complete");
+    REQUIRE(ra.status == RunStatus::complete);
+    REQUIRE(rb.status == RunStatus::complete);
     REQUIRE(sa.x.size() == sb.x.size());
     double worst = 0.0, largest = 0.0;
     for (std::size_t i = 0; i < sa.x.size(); ++i) {
@@ -531,7 +531,7 @@ TEST_CASE("a climber raised slowly gains m Omega (r2^2 - r1^2), paid by the anch
                                                          "material.damping_time=1 s", "simulation.rtol=1e-8",
                                                          "simulation.atol_position=1e-4", "simulation.atol_velocity=1e-6"}));
   const auto r = run(sc);
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   const std::size_t last = r->sink.t.size() - 1;
   REQUIRE(r->model.climbers->climbers()[0].profile.end_time() < r->sink.t[last] - 3600.0);  // parked for the last hour
   const double rho1 = climber_rho(*r, 0, 0), rho2 = climber_rho(*r, 0, last);
@@ -564,7 +564,7 @@ TEST_CASE("the drive's work is the change of the climber's and the tether's ener
                                                          "material.damping_time=0", "simulation.rtol=1e-8",
                                                          "simulation.atol_position=1e-4", "simulation.atol_velocity=1e-6"}));
   const auto r = run(sc);
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   auto energy = [](const TetherDiagnostics& d) { return d.kinetic_j + d.potential_j + d.strain_j + d.climber_j; };
   const double e0 = energy(r->sink.d.front());
   double largest = 0.0, worst = 0.0;
@@ -604,7 +604,7 @@ TEST_CASE("between node crossings the drive's work is the energy change, on a vi
       "climbers: [{name: bead, mass: 0.002, from: 0.6, to: 9.4, direction: up, cruise_speed: 19, acceleration: 2000, "
       "deceleration: 2000}]\n";
   const auto r = run(load_scenario_text(text, "string.yaml", {}));
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   auto balance = [](const TetherDiagnostics& d) {
     return d.drive_work_j - (d.kinetic_j + d.potential_j + d.strain_j + d.climber_j);
   };
@@ -766,7 +766,7 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
     o.back() = "simulation.duration=" + number(p.end_time() + 1800.0);
     const auto r = run(load_scenario(kDemo, o));
     INFO(r->summary.message << "; " << r->summary.stats.steps << " steps, " << r->wall_s << " s");
-    CHECK(r->summary.status == "complete");
+    CHECK(r->summary.status == RunStatus::complete);
     // Resting on node 6 during the dwell and on node 12 at the end.
     const std::vector<double>& s0 = r->model.equilibrium.s0_m;
     double arrival = -1.0;  // the start of the dwell: the segment boundary after which it rests mid-way
@@ -798,7 +798,7 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
     INFO(crossings << " crossings; " << r->summary.message << "; " << r->summary.stats.steps << " steps, " << r->wall_s
                    << " s");
     CHECK(crossings >= 20);
-    CHECK(r->summary.status == "complete");
+    CHECK(r->summary.status == RunStatus::complete);
     CHECK(sample(*r, 0, r->sink.t.size() - 1).s_m == Approx(r->model.climbers->climbers()[0].profile.to()));
   }
   SECTION("two climbers on one element") {
@@ -818,7 +818,7 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
     INFO(shared << " of 240 minutes on one element; " << r->summary.message << "; " << r->summary.stats.steps
                 << " steps, " << r->wall_s << " s");
     CHECK(shared > 120);
-    CHECK(r->summary.status == "complete");
+    CHECK(r->summary.status == RunStatus::complete);
   }
 }
 
@@ -859,7 +859,7 @@ TEST_CASE("a climber leaving the anchor: the tether drops and swings", "[climber
   // the whole tether and the eastward swing that follows through Coriolis coupling are real
   // effects the results must show".
   const Run& r = standard_transit(50);
-  REQUIRE(r.summary.status == "complete");
+  REQUIRE(r.summary.status == RunStatus::complete);
   // At t = 0 the climber sits on the anchor (node 0, prescribed): its weight is the anchor's,
   // and the starting equilibrium is that of the unloaded tether, exactly.
   auto opts = std::vector<std::string>{"mesh.elements=50", "mesh.grading=geometric", "mesh.first_element_length=80 km",
@@ -906,8 +906,8 @@ TEST_CASE("the peak east-west offset of the standard transit converges with the 
 
 TEST_CASE("the peak east-west offset converges at the demo's mesh, N = 200 and 400", "[climber][convergence][long]") {
   const Run &a = standard_transit(200), &b = standard_transit(400);
-  REQUIRE(a.summary.status == "complete");
-  REQUIRE(b.summary.status == "complete");
+  REQUIRE(a.summary.status == RunStatus::complete);
+  REQUIRE(b.summary.status == RunStatus::complete);
   const double p200 = peak_offset(a), p400 = peak_offset(b);
   INFO("peak east-west offset " << p200 << " m at N = 200 (" << a.wall_s << " s), " << p400 << " m at N = 400 ("
                                 << b.wall_s << " s)");
@@ -921,7 +921,7 @@ TEST_CASE("scenarios/traffic.yaml: its schedule expands and a shortened run comp
   const std::string path = std::string(HAWSER_SOURCE_DIR) + "/scenarios/traffic.yaml";
   const auto r = run(load_scenario(path, {"simulation.duration=2 h", "mesh.elements=30"}));
   INFO(r->summary.message);
-  CHECK(r->summary.status == "complete");
+  CHECK(r->summary.status == RunStatus::complete);
   const std::vector<Climber>& cs = r->model.climbers->climbers();
   REQUIRE(cs.size() == 6);
   const double masses[] = {5000.0, 4000.0, 6000.0};
