@@ -95,7 +95,8 @@ def main():
                 c.check(attr(f, "format") == "hawser-modes" and int(f.attrs["format_version"]) == 1,
                         "HDF5 root attributes format, format_version")
                 c.check("modes test string" in f["/input/scenario"][()].decode(), "HDF5 keeps the scenario as run")
-                c.check("not a certification method" in attr(f, "caution"), "HDF5 root caution attribute")
+                c.check("not a certification method" in attr(f, "caution"),
+                        "HDF5 root caution attribute")
                 units = {"period": "s", "frequency": "Hz", "damping_ratio": "1", "eigenvalue_real": "1/s",
                          "eigenvalue_imag": "1/s", "kind": "1", "kinetic_fraction": "1",
                          "largest_motion_altitude": "m", "shape_real": "m", "shape_imag": "m"}

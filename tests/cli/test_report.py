@@ -64,8 +64,8 @@ planet:
 tether:
   nodes: 20
 """
-FIGURES = ["safety_margins", "tension", "deflection_profiles", "deflection_history", "deflection_map", "energy",
-           "anchor_force", "climbers"]
+FIGURES = ["safety_margins", "tension", "deflection_profiles", "deflection_history",
+           "deflection_map", "energy", "anchor_force", "climbers"]
 CAUTION_PHRASES = ["not a certification method", "real structure is safe",
                    "licensed engineering practice", "applicable standards"]
 

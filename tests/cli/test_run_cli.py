@@ -135,7 +135,8 @@ def check_result_file(c, h, demo_path, design):
         # Root attributes (architecture.md, result file; status words from result_recorder.hpp).
         c.check(text_attr(f, "format") == "hawser-timehistory", "root format = hawser-timehistory",
                 repr(f.attrs.get("format")))
-        c.check(f.attrs.get("format_version") == 2, "root format_version = 2 (config/result_layout.yaml)",
+        c.check(f.attrs.get("format_version") == 2,
+                "root format_version = 2 (config/result_layout.yaml)",
                 repr(f.attrs.get("format_version")))
         version = subprocess.run([h.exe, "--version"], capture_output=True, text=True).stdout.strip()
         c.check(bool(version) and text_attr(f, "program_version") == version.split()[-1],
