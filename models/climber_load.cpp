@@ -187,7 +187,7 @@ std::vector<OutputField> ClimberLoad::output_fields(const std::vector<std::size_
     f.push_back({g + "on_tether", {}, "1", ""});
     f.push_back({g + "position", {3}, "m", ""});
     f.push_back({g + "velocity", {3}, "m/s", ""});
-    f.push_back({g + "drive_force", {}, "N", "climber_" + c.name + "_peak_drive_force_N"});
+    f.push_back({g + "drive_force", {}, "N", "climber_" + c.name + "_peak_drive_force_n"});
     f.push_back({g + "coriolis_force", {3}, "N", ""});
     f.push_back({g + "lateral_offset", {2}, "m", "climber_" + c.name + "_peak_lateral_offset_m"});
     f.push_back({g + "tension_below", {}, "N", ""});
@@ -216,7 +216,7 @@ std::vector<OutputAttribute> ClimberLoad::output_attributes() const {
     out.push_back({g, "to_m", p.to(), ""});
     out.push_back({g, "start_time_s", p.start_time(), ""});
     out.push_back({g, "end_time_s", p.end_time(), ""});
-    out.push_back({g, "top_speed_m_s", top_speed, ""});
+    out.push_back({g, "top_speed_m_per_s", top_speed, ""});
     out.push_back({g, "drag_area_m2", c.drag_area_m2, ""});
     out.push_back({g, "at_end", 0.0, ends[static_cast<int>(c.at_end)]});
     if (c.at_end == ClimberEnd::drop_payload) out.push_back({g, "end_mass_kg", c.end_mass_kg, ""});

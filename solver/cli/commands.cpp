@@ -4,6 +4,7 @@
 #include <iostream>
 #include <memory>
 
+#include "solver/output/caution.hpp"
 #include "solver/output/design_report.hpp"
 #include "solver/assembly/load_case_table.hpp"
 #include "solver/input/key_reference.hpp"
@@ -84,6 +85,7 @@ void print_summary(const RunSummary& s, const std::string& file) {
   for (const auto& r : s.ruptures)
     std::printf("  element %zu reached its ultimate strength (%.4g Pa) at t = %.6g s\n", r.element, r.stress_pa, r.time_s);
   std::printf("  results: %s\n", file.c_str());
+  std::printf("\n%s", kCautionLines);
 }
 }  // namespace
 

@@ -24,6 +24,8 @@ struct RunSummary {
   std::size_t outputs = 0;
   double peak_tension_n = 0.0, peak_tension_time_s = 0.0;
   std::size_t peak_tension_element = 0;
+  double min_tension_n = 1e300, min_tension_time_s = 0.0;  // smallest tension: slack margin
+  std::size_t min_tension_element = 0;
   double min_safety_factor = 1e300, min_safety_factor_time_s = 0.0;
   std::size_t min_safety_factor_element = 0;
   double peak_east_west_m = 0.0, peak_east_west_time_s = 0.0;    // largest |u_y|

@@ -12,6 +12,11 @@ void SummaryKeeper::observe(double t, const Matrix3X& x, const TetherDiagnostics
       s_.peak_tension_element = e;
       s_.peak_tension_time_s = t;
     }
+    if (d.tension_n[e] < s_.min_tension_n) {
+      s_.min_tension_n = d.tension_n[e];
+      s_.min_tension_element = e;
+      s_.min_tension_time_s = t;
+    }
   }
   if (d.max_stress_ratio > 0.0 && 1.0 / d.max_stress_ratio < s_.min_safety_factor) {
     s_.min_safety_factor = 1.0 / d.max_stress_ratio;

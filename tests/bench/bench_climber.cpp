@@ -64,7 +64,7 @@ std::string scenario_text(int n, const std::string& atol_velocity, const std::st
          "tether: {profile: constant_stress, safety_factor: 2, base_design_load: 196.1 kN, top_altitude: 100000 km,\n"
          "         section: {shape: ribbon, width_to_thickness: 1000}}\n"
          "counterweight: {mass: computed}\n"
-         "anchor: {latitude: 0 deg, longitude: -160 deg}\n"
+         "anchor: {latitude: 0 deg, longitude: -125 deg}\n"
          "mesh: {elements: " +
          std::to_string(n) +
          "}\n"

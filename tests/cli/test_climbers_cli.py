@@ -43,7 +43,7 @@ tether:
   top_altitude: 100000 km
   section: {shape: ribbon, width_to_thickness: 1000}
 counterweight: {mass: computed}
-anchor: {latitude: 0 deg, longitude: -160 deg}
+anchor: {latitude: 0 deg, longitude: -125 deg}
 mesh: {elements: 30, grading: geometric, first_element_length: 50 km}
 simulation: {duration: 1 h, output_interval: 10 min, method: bdf, rtol: 1.0e-6, atol_velocity: 1.0e-4}
 climbers:
@@ -228,7 +228,7 @@ def main():
                 summary = f["summary"].attrs
                 for n in names:
                     g = f["climbers"][n]
-                    for field, attr in (("drive_force", f"climber_{n}_peak_drive_force_N"),
+                    for field, attr in (("drive_force", f"climber_{n}_peak_drive_force_n"),
                                         ("lateral_offset", f"climber_{n}_peak_lateral_offset_m")):
                         data = np.abs(g[field][:])
                         data = data[np.isfinite(data)]

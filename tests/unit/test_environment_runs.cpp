@@ -236,7 +236,7 @@ TEST_CASE("drag on a planet node: density of the 1976 standard and the wind's EN
   const auto fields = drag->output_fields(nodes);
   REQUIRE(fields.size() == 4);
   CHECK(fields[0].path == "/environment/wind");
-  CHECK(fields[3].summary_peak == "peak_aerodynamic_load_N_per_m");
+  CHECK(fields[3].summary_peak == "peak_aerodynamic_load_n_per_m");
   std::vector<std::vector<double>> rows(fields.size());
   drag->sample_outputs(s, nodes, rows);
   REQUIRE(rows[0].size() == 9);
@@ -333,8 +333,9 @@ TEST_CASE("the anchor longitude orients the tide bodies in the rotating frame", 
   // the anchor's longitude, at phase 0 on an equatorial orbit, is straight overhead (+x) at t = 0;
   // 90 deg further east along the equator it is at +y (east). Orbit radius 384,400 km (the
   // data's, models/third_body_tide.cpp).
+  const double anchor_deg = load_scenario(kDemo, {}).anchor.longitude_rad * 180.0 / M_PI;
   for (double extra_deg : {0.0, 90.0}) {
-    const std::string lon = std::to_string(-160.0 + extra_deg) + " deg";
+    const std::string lon = std::to_string(anchor_deg + extra_deg) + " deg";
     const Scenario sc = load_scenario(kDemo, {"climbers=[]", "mesh.elements=10", "environment.tides.moon=true",
                                               "environment.tides.moon_inclination=0 deg",
                                               "environment.tides.moon_node_longitude=" + lon});
