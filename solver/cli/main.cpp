@@ -2,6 +2,8 @@
 // The command line: parses arguments, calls one command, maps errors to exit codes.
 #include <CLI/CLI.hpp>
 
+#include <hdf5.h>
+
 #include <iostream>
 
 #include "solver/cli/cmd_modes.hpp"
@@ -10,6 +12,10 @@
 #include "solver/input/errors.hpp"
 
 int main(int argc, char** argv) {
+  // Every HDF5 file is closed explicitly. The library's own clean-up at exit would try again
+  // to flush a file whose close failed (a full disk) and crash; without it the process exits
+  // with its own code.
+  H5dont_atexit();
   using namespace hawser;
   CLI::App app{"hawser " HAWSER_VERSION ": dynamics of very long tethers (research tool, not a certification method)"};
   app.require_subcommand(1);

@@ -500,6 +500,34 @@ void H5Writer::flush() {
 
 void H5Writer::write_final() {
   const std::string tmp = part("final.tmp");
+  try {
+    write_final_to(tmp);
+  } catch (...) {
+    // A full disk, most often: the half-written file goes, giving back its space, and the
+    // published index stays the file.
+    std::remove(tmp.c_str());
+    throw;
+  }
+  replace_published(tmp);
+}
+
+void H5Writer::mark_published(const std::string& status, const std::string& message) {
+  const H5FileId file{h5check(H5Fopen(path_.c_str(), H5F_ACC_RDWR, H5P_DEFAULT), "H5Fopen")};
+  for (const auto& [name, text] : {std::pair<const char*, const std::string&>{"status", status},
+                                   {"failure", message}}) {
+    const H5DataspaceId space{h5check(H5Screate(H5S_SCALAR), "H5Screate")};
+    const H5Id<H5Tclose> type{h5check(H5Tcopy(H5T_C_S1), "H5Tcopy")};
+    h5check(H5Tset_size(type.get(), std::max<std::size_t>(text.size(), 1)), "H5Tset_size");
+    h5check(H5Tset_cset(type.get(), H5T_CSET_UTF8), "H5Tset_cset");
+    if (H5Aexists(file.get(), name) > 0) h5check(H5Adelete(file.get(), name), "H5Adelete");
+    const H5Id<H5Aclose> attr{h5check(
+        H5Acreate2(file.get(), name, type.get(), space.get(), H5P_DEFAULT, H5P_DEFAULT),
+        "H5Acreate2")};
+    h5check(H5Awrite(attr.get(), type.get(), text.c_str()), "H5Awrite");
+  }
+}
+
+void H5Writer::write_final_to(const std::string& tmp) {
   H5FileId file = create_file(tmp);
   tree_.write_datasets(file.get());
   const hsize_t flushed = published_rows();
@@ -543,7 +571,6 @@ void H5Writer::write_final() {
   }
   tree_.write_attributes(file.get());
   file.close("H5Fclose");
-  replace_published(tmp);
 }
 
 void H5Writer::close() {

@@ -156,6 +156,10 @@ class H5Writer {
   /// Write the final, self-contained file and remove the segments; throws LibraryError on
   /// failure (the last published index stays readable). Idempotent.
   void close();
+  /// After a failed close: sets the root attributes `status` and `failure` of the published
+  /// index in place, so the file says why it is not complete. Throws LibraryError when even
+  /// that cannot be written.
+  void mark_published(const std::string& status, const std::string& message);
 
  private:
   struct Series {
@@ -183,6 +187,7 @@ class H5Writer {
   std::string next_segment_name();
   void publish_index();
   void write_final();
+  void write_final_to(const std::string& tmp);
   void replace_published(const std::string& tmp) const;
 
   std::string path_;

@@ -443,7 +443,20 @@ void ResultRecorder::finish(const RunSummary& s) {
   }
   file_.set_attribute("/", "status", std::string(to_string(s.status)));
   file_.erase(kCheckpoint);  // a finished run is not resumed
-  file_.close();
+  try {
+    file_.close();
+  } catch (const LibraryError& e) {
+    // Most often a full disk. The file is its last publication (every row up to the last
+    // flush); say so in it, and fail the command (exit 1), never leaving status "running".
+    const std::string why = std::string("the final file could not be written (") + e.what() +
+                            "); this file holds the run up to its last publication";
+    try {
+      file_.mark_published("failed", why);
+    } catch (const LibraryError& e2) {
+      throw LibraryError(why + "; marking it failed did not succeed either: " + e2.what());
+    }
+    throw LibraryError(why);
+  }
   publish_xdmf();
 }
 
