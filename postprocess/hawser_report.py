@@ -200,6 +200,17 @@ def _figure_plan(ctx):
                  (lambda: hp.energy_figure(r.time_for(energy_rows), r.energy_J))
                  if _rows(energy_rows) else None))
 
+    limit = r.summary_attrs.get("energy_residual_limit")
+    plan.append(("energy_budget", "Energy budget: the change of the mechanical energy (K + P + S, "
+                 "and C, the climbers') against the work that explains it (each channel of "
+                 "/energy/work: drag, tides, climbers' drives, strikes, climbers arriving or "
+                 "leaving) less the dissipated energy D; below, the residual as a fraction of the "
+                 "energy exchanged" + (f", flagged above {limit:g}." if limit else "."),
+                 "/energy/*, /energy/work/* and /time",
+                 (lambda: hp.energy_budget_figure(r.time_for(energy_rows), r.energy_J,
+                                                  r.climbers_energy_J, r.work_J, limit))
+                 if _rows(energy_rows) else None))
+
     plan.append(("anchor_force", "Anchor force as recorded in /anchor/force, in the "
                  "rotating frame's up, east and north components.", "/anchor/force and /time",
                  (lambda: hp.anchor_force_figure(r.time_for(r.anchor_force_N), r.anchor_force_N))

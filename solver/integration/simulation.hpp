@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "solver/input/scenario.hpp"
+#include "solver/integration/energy_budget.hpp"
 #include "solver/integration/tether_system.hpp"
 #include "solver/integration/time_integrator.hpp"
 
@@ -38,6 +39,7 @@ struct RunSummary {
   long failure_node = -1;            // where the integrator's local error was largest (-1: n/a)
   std::size_t max_slack_elements = 0;
   double first_slack_time_s = -1.0;   // -1: never slack
+  EnergyBalance energy;              // the energy budget over the outputs
 };
 
 /// Where a run can be continued from: the state at the last output, what comes next and
