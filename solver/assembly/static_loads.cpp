@@ -92,6 +92,7 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
     parked = std::make_unique<ClimberLoad>(l.parked, m.equilibrium.s0_m, point_models,
                                            m.mesh.as_built_position);
     parked->set_parked(true);
+    if (!l.climber_path.empty()) parked->set_path(l.climber_path);
     if (l.mean_wind)
       if (auto air = std::dynamic_pointer_cast<const AerodynamicDrag>(m.mean_drag))
         parked->set_air(air);

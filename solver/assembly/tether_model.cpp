@@ -115,7 +115,11 @@ TetherModel build_model(const Scenario& sc) {
   // mean wind.
   const std::vector<double> reference = reference_distance(m.mesh);
   StaticLoads loads;
-  loads.parked = read_climbers(sc, reference, m.equilibrium.s0_m);
+  // Climbers' positions and speeds along the ribbon at rest, stretched (what the wheels see),
+  // or along the unstretched ribbon (material coordinate) when the scenario asks for it.
+  const bool over_stretched = sc.values.text("climber_speeds") == "over_stretched_ribbon";
+  loads.parked = read_climbers(sc, reference, over_stretched ? reference : m.equilibrium.s0_m);
+  if (over_stretched) loads.climber_path = reference;
   loads.counterweight_kg = m.mesh.counterweight_mass;
   loads.mean_wind = m.mean_drag != nullptr;
   loads.tides = sc.environment.tides.in_static_state;
@@ -138,6 +142,7 @@ TetherModel build_model(const Scenario& sc) {
     m.climbers = std::make_unique<ClimberLoad>(loads.parked, m.equilibrium.s0_m, point_models,
                                                m.mesh.as_built_position);
     m.climbers->set_bars(m.bars.get());
+    if (over_stretched) m.climbers->set_path(reference);
     for (const auto& b : m.body)
       if (auto air = std::dynamic_pointer_cast<const AerodynamicDrag>(b)) m.climbers->set_air(air);
   }

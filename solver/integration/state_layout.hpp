@@ -34,6 +34,8 @@ class StateLayout {
   std::size_t u(std::size_t node, int a) const { return kPerNode * (node - first_) + a; }
   /// Index of velocity component a (0..2) of node k.
   std::size_t v(std::size_t node, int a) const { return kPerNode * (node - first_) + 3 + a; }
+  /// Number of the motion's components (displacements and velocities), before the quadratures.
+  std::size_t dynamic() const { return kPerNode * free_nodes(); }
   std::size_t dissipated_energy() const { return kPerNode * free_nodes(); }
   std::size_t anchor_angular_impulse() const { return kPerNode * free_nodes() + 1; }
   std::size_t work_channels() const { return channels_; }
