@@ -2,6 +2,7 @@
 
 #include <Eigen/LU>
 #include <algorithm>
+#include <cmath>
 
 namespace hawser {
 
@@ -41,20 +42,32 @@ std::vector<std::string> TetherSystem::work_channels(const TetherModel& model) {
   for (const ForceModel* m : model.forces())
     for (const std::string& name : m->work_channels()) add(name);
   if (!model.jumps.empty()) add("strikes");
+  for (std::size_t e = 0; e < model.elements(); ++e)
+    if (std::isfinite(model.bars->cut_time(e))) {
+      add("cuts");
+      break;
+    }
   if (model.climbers) add("climber_events");
   return out;
 }
 
-void TetherSystem::add_event_work(double t, double* y, double strike_kinetic_j, bool climber_jump) const {
+void TetherSystem::add_event_work(double t, double* y, double strike_kinetic_j, bool energy_jumps) const {
   const auto slot = [&](const char* name) {
     return static_cast<std::size_t>(std::find(channels_.begin(), channels_.end(), name) - channels_.begin());
   };
-  const std::size_t strikes = slot("strikes"), climbers = slot("climber_events");
+  const std::size_t strikes = slot("strikes"), climbers = slot("climber_events"), cuts = slot("cuts");
   if (strikes < channels_.size()) y[layout_.work(strikes)] += strike_kinetic_j;
-  if (climber_jump && climbers < channels_.size()) {
-    Matrix3X x, v;
-    node_state(t, y, x, v);
+  if (!energy_jumps || (climbers == channels_.size() && cuts == channels_.size())) return;
+  Matrix3X x, v;
+  node_state(t, y, x, v);
+  if (climbers < channels_.size())
     y[layout_.work(climbers)] += model_.climbers->event_energy_jump({t, x, v, model_.mesh.node_mass});
+  if (cuts < channels_.size()) {
+    // The strain energy of elements cut at t, gone with them: measured across the instant,
+    // as the climbers' jump (ClimberLoad::kEventWindow_s either side).
+    const double dt = ClimberLoad::kEventWindow_s;
+    const TetherState after{t + dt, x, v, model_.mesh.node_mass}, before{t - dt, x, v, model_.mesh.node_mass};
+    y[layout_.work(cuts)] += model_.bars->energy(after) - model_.bars->energy(before);
   }
 }
 

@@ -54,15 +54,15 @@ class TetherSystem : public OdeSystem {
 
   /// The energy budget's channels of a model, in the state's order: those its force models
   /// name (ForceModel::work_channels), then "strikes" (kinetic energy of the velocity jumps)
-  /// and "climber_events" (ClimberLoad::event_energy_jump: climbers arriving, leaving, and
-  /// crossing nodes) when the model has them; the run driver books those two at their
-  /// instants (add_event_work).
+  /// "climber_events" (ClimberLoad::event_energy_jump: climbers arriving, leaving, and
+  /// crossing nodes) and "cuts" (the strain energy of cut elements, gone with them) when the
+  /// model has them; the run driver books those at their instants (add_event_work).
   static std::vector<std::string> work_channels(const TetherModel& model);
   const std::vector<std::string>& work_channels() const { return channels_; }
-  /// Adds the energy that jumps at an event at time t to the channels that book it: the
-  /// climbers' jump at t; and, if `strike_kinetic_j` is given, a strike's change of kinetic
-  /// energy (the caller measures it across the jump). Book the climbers' jump once per time.
-  void add_event_work(double t, double* y, double strike_kinetic_j, bool climber_jump) const;
+  /// Adds the energy that jumps at an event at time t to the channels that book it: a
+  /// strike's change of kinetic energy `strike_kinetic_j` (the caller measures it across the
+  /// jump) and, with `energy_jumps`, the jumps of stored energy at t (climbers, cuts).
+  void add_event_work(double t, double* y, double strike_kinetic_j, bool energy_jumps) const;
   const StateLayout& layout() const { return layout_; }
   const TetherModel& model() const { return model_; }
   /// Positions and velocities of all nodes at (t, y) [m, m/s].

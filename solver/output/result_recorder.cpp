@@ -79,6 +79,8 @@ static std::string work_meaning(const std::string& channel) {
   if (channel == "climber_drives")
     return "work of the climbers' drives on their motion along the ribbon since t = 0";
   if (channel == "strikes") return "kinetic energy given by the strikes (velocity jumps)";
+  if (channel == "cuts")
+    return "strain energy of the elements at the instants they are cut, gone with them (-)";
   if (channel == "climber_events")
     return "jumps of the climbers' energy at their instants: climbers arriving on the ribbon (+), "
            "leaving it or dropping a payload (-), and the kink at each node crossing, where a "

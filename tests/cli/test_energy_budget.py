@@ -1,5 +1,6 @@
 """The energy budget of a run closes (issue 16, item 3): the demonstration run's residual is
-below 1e-3 of the energy exchanged.
+below 1e-3 of the energy exchanged; so are the cut's (the strain energy a cut takes) and the
+storm's (the air's work) over a shortened run, whose channels are checked too.
 
 Checked from the result file with numpy, independently of the program's own /summary:
   residual r(t) = dK + dP + dS + dC - sum of /energy/work/* + D   (changes since t = 0)
@@ -89,6 +90,26 @@ def main():
             c.check(abs(got - expected) <= 1e-9 * abs(expected),
                     "/energy/climbers = m Phi(r) + m v^2 / 2 for the parked climber",
                     f"{got:.12g} vs {expected:.12g} J")
+        # Other channels: a cut (its element's strain energy goes with it) and the storm's drag.
+        for name, extra, channel, sign in (("cut", [], "cuts", -1.0),
+                                           ("storm", ["--set", "simulation.duration=1 h"], "drag", 0.0)):
+            out = os.path.join(tmp, f"{name}.h5")
+            path = os.path.join(a.source, "scenarios", f"{name}.yaml")
+            p = subprocess.run([a.hawser, "run", path, "-o", out, *extra], capture_output=True,
+                               text=True, timeout=600)
+            if not c.check(p.returncode == 0, f"{name} run exits 0", p.stderr[-500:]):
+                continue
+            with h5py.File(out, "r") as h:
+                r_max, x_max, channels = balance(h)
+                frac = r_max / x_max
+                print(f"     {name}: channels {channels}; largest residual {r_max:.4g} J of "
+                      f"{x_max:.4g} J exchanged ({frac:.3g})")
+                c.check(channel in channels, f"{name}: work channel {channel} recorded", str(channels))
+                c.check(frac < 1e-3, f"{name}: residual below 1e-3 of the energy exchanged", f"{frac:.3g}")
+                if channel in channels:
+                    w = h[f"/energy/work/{channel}"][-1]
+                    c.check(sign == 0.0 or w * sign > 0, f"{name}: {channel} has the expected sign",
+                            f"{w:.4g} J")
     return c.summary()
 
 
