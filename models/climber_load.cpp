@@ -8,12 +8,16 @@ namespace hawser {
 
 ClimberLoad::ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_nodes,
                          std::vector<std::shared_ptr<const ForceModel>> point_models,
-                         const Matrix3X& reference_position)
+                         const Matrix3X& reference_position,
+                         std::shared_ptr<const BarElements> bars,
+                         std::shared_ptr<const AerodynamicDrag> air)
     : climbers_(std::move(climbers)),
       s_nodes_(std::move(s_nodes)),
       path_(s_nodes_),
       point_models_(std::move(point_models)),
-      reference_(reference_position) {}
+      reference_(reference_position),
+      bars_(std::move(bars)),
+      air_(std::move(air)) {}
 
 std::vector<Attachment> ClimberLoad::attachments(double t) const {
   std::vector<Attachment> out;

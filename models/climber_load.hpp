@@ -47,13 +47,16 @@ class ClimberLoad : public ForceModel {
  public:
   /// s_nodes: material coordinate of every node [m]; point_models: the forces that act on a
   /// point mass (gravity, frame, tides), evaluated at the climber.
+  /// bars: for the tensions next to each climber in the outputs (may be null); air: the air
+  /// (density and wind) for the drag of climbers with a drag area (null: no drag).
   ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_nodes,
-              std::vector<std::shared_ptr<const ForceModel>> point_models, const Matrix3X& reference_position);
+              std::vector<std::shared_ptr<const ForceModel>> point_models,
+              const Matrix3X& reference_position,
+              std::shared_ptr<const BarElements> bars = nullptr,
+              std::shared_ptr<const AerodynamicDrag> air = nullptr);
   std::string name() const override { return "climbers"; }
   /// The drag of climbers with a drag area leaves the change of the air with position out.
   bool exact_position_jacobian() const override { return !air_; }
-  /// The bars, for the tensions next to each climber in the outputs.
-  void set_bars(const BarElements* bars) { bars_ = bars; }
   /// The coordinate the profiles' positions and speeds are measured along, at every node
   /// [m]: by default the material coordinate (unstretched arc length, s_nodes); given the
   /// distance along the ribbon at rest (stretched), a climber's speed is what its wheels see
@@ -62,8 +65,6 @@ class ClimberLoad : public ForceModel {
   void set_path(std::vector<double> path_nodes) { path_ = std::move(path_nodes); }
   /// The material coordinate [m] of path coordinate p [m].
   double material_coordinate(double path_m) const;
-  /// The air (density and wind) for the drag of climbers with a drag area.
-  void set_air(std::shared_ptr<const AerodynamicDrag> air) { air_ = std::move(air); }
 
   /// In parked mode (for the starting equilibrium) every climber that is not a sudden load
   /// sits at its start, at rest.
@@ -119,10 +120,10 @@ class ClimberLoad : public ForceModel {
   std::vector<double> s_nodes_;
   std::vector<double> path_;  // the profiles' coordinate at the nodes (set_path; s_nodes_ by default)
   std::vector<std::shared_ptr<const ForceModel>> point_models_;
-  std::shared_ptr<const AerodynamicDrag> air_;  // null: no air
   Matrix3X reference_;
+  std::shared_ptr<const BarElements> bars_;     // null: no tensions in the outputs
+  std::shared_ptr<const AerodynamicDrag> air_;  // null: no air
   bool parked_ = false;
-  const BarElements* bars_ = nullptr;
 };
 
 }  // namespace hawser

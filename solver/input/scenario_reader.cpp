@@ -37,7 +37,7 @@ class Validator {
     origin_ = &origin;
     file_ = where_file;
     ScenarioValue rv;
-    rv.type = "map";
+    rv.type = KeyType::map;
     rv.where = location(file_, root.Mark());
     values_.set("", rv);
     walk_map(root, "", "");
@@ -91,117 +91,151 @@ class Validator {
     present_maps_.push_back({pattern, display});
   }
 
-  // `w` is where the key was written: problems with the value point there.
+  // `w` is where the key was written: problems with the value point there. One reader per key
+  // type; each stores the value, or reports a problem and leaves the key marked invalid.
   void walk_value(const KeySpec& spec, const YAML::Node& node, const std::string& display, const std::string& w) {
     ScenarioValue v;
     v.type = spec.type;
     v.where = w;
     // A key with a bad value is present all the same: no second "missing" message for it.
     ScenarioValue invalid = v;
-    invalid.type = "invalid";
+    invalid.invalid = true;
     values_.set(display, invalid);
-    const auto& units = UnitTable::builtin();
-    if (spec.type == "map") {
-      values_.set(display, v);
-      walk_map(node, spec.path, display);
-      return;
-    }
-    if (spec.type == "name_or_map") {
-      if (node.IsScalar()) {
-        resolve_named(spec, node, display, w);
-        return;
-      }
-      v.text = "inline";
-      values_.set(display, v);
-      walk_map(node, spec.path, display);
-      return;
-    }
-    if (spec.type == "list") {
-      if (!node.IsSequence()) {
-        problem(w, display, "expected a list (- item per line)");
-        return;
-      }
-      v.integer = static_cast<long long>(node.size());
-      values_.set(display, v);
-      for (std::size_t i = 0; i < node.size(); ++i) {
-        const std::string d = display + "[" + std::to_string(i) + "]";
-        ScenarioValue item;
-        item.type = "map";
-        item.where = where(d, node[i]);
-        values_.set(d, item);
-        walk_map(node[i], spec.path + "[]", d);
-      }
-      return;
-    }
-    if (spec.type == "vector3" || spec.type == "integer_list" || spec.type == "quantity_list") {
-      if (!node.IsSequence() || (spec.type == "vector3" && node.size() != 3) || node.size() == 0)
-        return problem(w, display, spec.type == "vector3"         ? "expected a list of three values [x, y, z]"
-                                   : spec.type == "quantity_list" ? "expected a list of values [20 t, 15 t]"
-                                                                  : "expected a list of whole numbers [1, 5, 9]");
-      for (const auto& item : node) {
-        if (!item.IsScalar()) return problem(w, display, "expected plain values in the list");
-        if (spec.type != "integer_list") {
-          double x = 0;
-          std::string why;
-          if (!units.to_si(item.Scalar(), spec.dimension, x, why)) return problem(w, display, why);
-          v.vector.push_back(x);
-        } else {
-          char* end = nullptr;
-          const long long n = std::strtoll(item.Scalar().c_str(), &end, 10);
-          if (item.Scalar().empty() || *end != '\0' || n < 0)
-            return problem(w, display, "expected whole numbers >= 0, got '" + item.Scalar() + "'");
-          v.vector.push_back(static_cast<double>(n));
-        }
-      }
-      values_.set(display, v);
-      return;
+    switch (spec.type) {
+      case KeyType::map: return read_map(spec, node, display, v);
+      case KeyType::name_or_map: return read_name_or_map(spec, node, display, v);
+      case KeyType::list: return read_list(spec, node, display, v);
+      case KeyType::vector3:
+      case KeyType::integer_list:
+      case KeyType::quantity_list: return read_sequence(spec, node, display, v);
+      case KeyType::string:
+      case KeyType::boolean:
+      case KeyType::choice:
+      case KeyType::integer:
+      case KeyType::quantity: break;
     }
     if (!node.IsScalar()) {
       problem(w, display, "expected a single value, got a " + std::string(node.IsMap() ? "mapping" : "list"));
       return;
     }
-    const std::string s = node.Scalar();
-    if (spec.type == "string") {
-      v.text = s;
-    } else if (spec.type == "boolean") {
-      if (s == "true" || s == "yes" || s == "on") v.boolean = true;
-      else if (s == "false" || s == "no" || s == "off") v.boolean = false;
-      else return problem(w, display, "expected true or false, got '" + s + "'");
-    } else if (spec.type == "choice") {
-      bool ok = false;
-      std::string list;
-      for (const auto& c : spec.choices) {
-        ok = ok || c == s;
-        list += (list.empty() ? "" : ", ") + c;
+    const std::string& s = node.Scalar();
+    bool ok = true;
+    switch (spec.type) {
+      case KeyType::string: v.text = s; break;
+      case KeyType::boolean: ok = read_boolean(s, display, v); break;
+      case KeyType::choice: ok = read_choice(spec, s, display, v); break;
+      case KeyType::integer: ok = read_integer(spec, s, display, v); break;
+      case KeyType::quantity: ok = read_quantity(spec, s, display, v); break;
+      default: break;
+    }
+    if (ok) values_.set(display, v);
+  }
+
+  void read_map(const KeySpec& spec, const YAML::Node& node, const std::string& display, ScenarioValue& v) {
+    values_.set(display, v);
+    walk_map(node, spec.path, display);
+  }
+
+  void read_name_or_map(const KeySpec& spec, const YAML::Node& node, const std::string& display, ScenarioValue& v) {
+    if (node.IsScalar()) {
+      resolve_named(spec, node, display, v.where);
+      return;
+    }
+    v.text = "inline";
+    read_map(spec, node, display, v);
+  }
+
+  void read_list(const KeySpec& spec, const YAML::Node& node, const std::string& display, ScenarioValue& v) {
+    if (!node.IsSequence()) {
+      problem(v.where, display, "expected a list (- item per line)");
+      return;
+    }
+    v.integer = static_cast<long long>(node.size());
+    values_.set(display, v);
+    for (std::size_t i = 0; i < node.size(); ++i) {
+      const std::string d = display + "[" + std::to_string(i) + "]";
+      ScenarioValue item;
+      item.type = KeyType::map;
+      item.where = where(d, node[i]);
+      values_.set(d, item);
+      walk_map(node[i], spec.path + "[]", d);
+    }
+  }
+
+  /// vector3, integer_list, quantity_list.
+  void read_sequence(const KeySpec& spec, const YAML::Node& node, const std::string& display, ScenarioValue& v) {
+    const std::string& w = v.where;
+    const bool vector3 = spec.type == KeyType::vector3, integers = spec.type == KeyType::integer_list;
+    if (!node.IsSequence() || (vector3 && node.size() != 3) || node.size() == 0)
+      return problem(w, display, vector3    ? "expected a list of three values [x, y, z]"
+                                 : integers ? "expected a list of whole numbers [1, 5, 9]"
+                                            : "expected a list of values [20 t, 15 t]");
+    for (const auto& item : node) {
+      if (!item.IsScalar()) return problem(w, display, "expected plain values in the list");
+      if (!integers) {
+        double x = 0;
+        std::string why;
+        if (!UnitTable::builtin().to_si(item.Scalar(), spec.dimension, x, why)) return problem(w, display, why);
+        v.vector.push_back(x);
+      } else {
+        char* end = nullptr;
+        const long long n = std::strtoll(item.Scalar().c_str(), &end, 10);
+        if (item.Scalar().empty() || *end != '\0' || n < 0)
+          return problem(w, display, "expected whole numbers >= 0, got '" + item.Scalar() + "'");
+        v.vector.push_back(static_cast<double>(n));
       }
-      if (!ok) return problem(w, display, "'" + s + "' is not one of: " + list);
-      v.text = s;
-    } else if (spec.type == "integer") {
-      char* end = nullptr;
-      const long long n = std::strtoll(s.c_str(), &end, 10);
-      if (s.empty() || *end != '\0') return problem(w, display, "expected a whole number, got '" + s + "'");
-      v.integer = n;
-      v.number = static_cast<double>(n);
-      if (!check_limits(spec, v.number, w, display)) return;
-    } else if (spec.type == "quantity") {
-      for (const auto& kw : spec.keywords)
-        if (s == kw) {
-          v.text = kw;
-          values_.set(display, v);
-          return;
-        }
-      std::string why;
-      if (!units.to_si(s, spec.dimension, v.number, why)) {
-        if (!spec.keywords.empty()) why += " or one of the words:" + [&] { std::string k; for (auto& x : spec.keywords) k += " " + x; return k; }();
-        return problem(w, display, why);
-      }
-      if (!check_limits(spec, v.number, w, display)) return;
     }
     values_.set(display, v);
   }
 
+  bool read_boolean(const std::string& s, const std::string& display, ScenarioValue& v) {
+    if (s == "true" || s == "yes" || s == "on") v.boolean = true;
+    else if (s == "false" || s == "no" || s == "off") v.boolean = false;
+    else return problem(v.where, display, "expected true or false, got '" + s + "'"), false;
+    return true;
+  }
+
+  bool read_choice(const KeySpec& spec, const std::string& s, const std::string& display, ScenarioValue& v) {
+    std::string list;
+    for (const auto& c : spec.choices) {
+      if (c == s) {
+        v.text = s;
+        return true;
+      }
+      list += (list.empty() ? "" : ", ") + c;
+    }
+    return problem(v.where, display, "'" + s + "' is not one of: " + list), false;
+  }
+
+  bool read_integer(const KeySpec& spec, const std::string& s, const std::string& display, ScenarioValue& v) {
+    char* end = nullptr;
+    const long long n = std::strtoll(s.c_str(), &end, 10);
+    if (s.empty() || *end != '\0')
+      return problem(v.where, display, "expected a whole number, got '" + s + "'"), false;
+    v.integer = n;
+    v.number = static_cast<double>(n);
+    return check_limits(spec, v.number, v.where, display);
+  }
+
+  bool read_quantity(const KeySpec& spec, const std::string& s, const std::string& display, ScenarioValue& v) {
+    for (const auto& kw : spec.keywords)
+      if (s == kw) {
+        v.text = kw;
+        return true;
+      }
+    std::string why;
+    if (!UnitTable::builtin().to_si(s, spec.dimension, v.number, why)) {
+      if (!spec.keywords.empty()) {
+        why += " or one of the words:";
+        for (const auto& k : spec.keywords) why += " " + k;
+      }
+      return problem(v.where, display, why), false;
+    }
+    return check_limits(spec, v.number, v.where, display);
+  }
+
   bool check_limits(const KeySpec& spec, double x, const std::string& w, const std::string& display) {
-    const std::string unit = spec.type == "quantity" ? " " + UnitTable::builtin().si_unit(spec.dimension) : "";
+    const std::string unit = spec.type == KeyType::quantity ? " " + UnitTable::builtin().si_unit(spec.dimension) : "";
     const std::string u = unit == " 1" ? "" : unit;
     if (spec.min && x < *spec.min) return problem(w, display, "must be at least " + fmt_number(*spec.min) + u + ", got " + fmt_number(x) + u), false;
     if (spec.max && x > *spec.max) return problem(w, display, "must be at most " + fmt_number(*spec.max) + u + ", got " + fmt_number(x) + u), false;
@@ -246,7 +280,7 @@ class Validator {
     const auto& units = UnitTable::builtin();
     // An absent optional map (model:, field:) stands for all its defaults.
     for (const auto& k : ref_.all()) {
-      if (k.type != "map" || k.required || !k.required_when_key.empty() || k.path.find('[') != std::string::npos) continue;
+      if (k.type != KeyType::map || k.required || !k.required_when_key.empty() || k.path.find('[') != std::string::npos) continue;
       if (values_.has(k.path) || !(k.parent().empty() || values_.has(k.parent()))) continue;
       present_maps_.push_back({k.path, k.path});
       implicit_maps_.insert(k.path);
@@ -260,13 +294,13 @@ class Validator {
         v.type = c->type;
         v.where = "default";
         const std::string& s = *c->default_text;
-        if (c->type == "quantity") {
+        if (c->type == KeyType::quantity) {
           std::string why;
           units.to_si(s, c->dimension, v.number, why);
-        } else if (c->type == "integer") {
+        } else if (c->type == KeyType::integer) {
           v.integer = std::stoll(s);
           v.number = static_cast<double>(v.integer);
-        } else if (c->type == "boolean") {
+        } else if (c->type == KeyType::boolean) {
           v.boolean = s == "true";
         } else {
           v.text = s;
@@ -417,7 +451,7 @@ ReadScenario ScenarioReader::read_text(const std::string& text, std::vector<Prob
     // Changing one property of a named planet or material: write the entry out inline first.
     const std::string head = path.substr(0, path.find('.'));
     const KeySpec* head_spec = KeyReference::builtin().find(head);
-    if (head != path && head_spec && head_spec->type == "name_or_map" && root[head] && root[head].IsScalar()) {
+    if (head != path && head_spec && head_spec->type == KeyType::name_or_map && root[head] && root[head].IsScalar()) {
       const YAML::Node table = YAML::Load(embedded_config().at(head_spec->table));
       const YAML::Node entry = table.begin()->second[root[head].Scalar()];
       if (entry) {

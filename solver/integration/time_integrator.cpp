@@ -25,24 +25,6 @@
 
 namespace hawser {
 
-Method parse_method(const std::string& name) {
-  if (name == "bdf") return Method::bdf;
-  if (name == "adams") return Method::adams;
-  if (name == "erk") return Method::erk;
-  if (name == "esdirk") return Method::esdirk;
-  throw InputError("unknown integration method '" + name + "' (valid: bdf, adams, erk, esdirk)");
-}
-
-std::string method_name(Method method) {
-  switch (method) {
-    case Method::bdf: return "bdf";
-    case Method::adams: return "adams";
-    case Method::erk: return "erk";
-    case Method::esdirk: return "esdirk";
-  }
-  return "unknown";
-}
-
 std::string SolverStats::to_string() const {
   std::ostringstream out;
   out << "steps " << steps << ", rhs evals " << rhs_evals << ", jac evals " << jac_evals

@@ -16,15 +16,10 @@
 #include <string>
 #include <vector>
 
+#include "solver/input/integration_method.hpp"
 #include "solver/integration/ode_system.hpp"
 
 namespace hawser {
-
-enum class Method { bdf, adams, erk, esdirk };
-
-/// "bdf" | "adams" | "erk"; anything else throws InputError listing the valid names.
-Method parse_method(const std::string& name);
-std::string method_name(Method method);
 
 struct IntegratorOptions {
   Method method = Method::bdf;

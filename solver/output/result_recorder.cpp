@@ -335,7 +335,7 @@ void ResultRecorder::publish_xdmf() const {
 
 void ResultRecorder::finish(const RunSummary& s) {
   const std::string g = "/summary";
-  file_.set_attribute(g, "status", s.status);
+  file_.set_attribute(g, "status", std::string(to_string(s.status)));
   file_.set_attribute(g, "message", s.message);
   file_.set_attribute(g, "end_time_s", s.end_time_s);
   file_.set_attribute(g, "wall_time_s", s.wall_s);
@@ -385,12 +385,12 @@ void ResultRecorder::finish(const RunSummary& s) {
   file_.set_attribute(g, "nonlinear_failures", s.stats.nonlinear_failures);
   file_.set_attribute(g, "root_evals", s.stats.root_evals);
   file_.set_attribute(g, "last_step_s", s.stats.last_step_s);
-  if (s.status == "failed") {
+  if (s.status == RunStatus::failed) {
     file_.set_attribute(g, "failure_message", s.message);
     file_.set_attribute(g, "failure_time_s", s.end_time_s);
     file_.set_attribute(g, "failure_node", static_cast<long long>(s.failure_node));
   }
-  file_.set_attribute("/", "status", s.status);
+  file_.set_attribute("/", "status", std::string(to_string(s.status)));
   file_.erase(kCheckpoint);  // a finished run is not resumed
   file_.close();
   publish_xdmf();

@@ -73,8 +73,8 @@ int main(int argc, char** argv) {
   const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   std::printf("%s N=%d %s rtol %s: %s, %ld steps, %ld rhs, %ld jac, %ld setups, %ld etf, %ld nlf, wall %.3f s, "
               "%.2f us/step, %ld nni, top u_y %.3f m\n",
-              which.c_str(), n, method.c_str(), rtol.c_str(), s.status.c_str(), s.stats.steps, s.stats.rhs_evals,
+              which.c_str(), n, method.c_str(), rtol.c_str(), to_string(s.status), s.stats.steps, s.stats.rhs_evals,
               s.stats.jac_evals, s.stats.linear_setups, s.stats.error_test_failures, s.stats.nonlinear_failures, wall,
               1e6 * wall / std::max(1L, s.stats.steps), s.stats.nonlinear_iterations, sink.last_uy_top);
-  return s.status == "complete" ? 0 : 1;
+  return s.status == RunStatus::complete ? 0 : 1;
 }

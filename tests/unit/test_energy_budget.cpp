@@ -73,7 +73,7 @@ TEST_CASE("a constant force's booked work is F . displacement, and the budget cl
   s.rtol = 1e-9;
   const Eigen::Vector3d f(0.0, 1e-3, 0.0);
   const auto r = run_with(s, std::make_shared<ConstantPush>(10, f));
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   REQUIRE(r->channels == std::vector<std::string>{"push"});
   double worst = 0.0, largest = 0.0;
   for (std::size_t i = 0; i < r->sink.t.size(); ++i) {
@@ -111,7 +111,7 @@ TEST_CASE("Kelvin-Voigt dissipation of a one-mass oscillator matches the damped 
   s.atol_position_m = 1e-15;
   s.atol_velocity_m_s = 1e-12;
   const auto r = run_with(s, nullptr);
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   const double m = r->model.mesh.node_mass[1];
   const double k = ea / r->model.equilibrium.l0_m[0];
   const double c = s.damping_time_s * k;
@@ -154,7 +154,7 @@ TEST_CASE("a strike's booked energy is the kinetic energy it gives", "[energy]")
   REQUIRE(sys.work_channels() == std::vector<std::string>{"strikes"});
   const std::vector<double> y0 = initial_state(sys, r->scenario.initial);
   r->summary = run_simulation(sys, y0, run_options(r->scenario.simulation, sys.layout()), r->sink);
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   const double given = 0.5 * r->model.mesh.node_mass[5] * 0.1 * 0.1;
   CHECK(r->sink.d.front().work_j[0] == 0.0);
   CHECK(r->sink.d.back().work_j[0] == Approx(given).epsilon(1e-12));
