@@ -37,6 +37,13 @@ class ConstantPush : public ForceModel {
   Eigen::Vector3d f_;
 };
 
+/// The same force, its work left unbooked (a model that forgot the hook).
+class UnbookedPush : public ConstantPush {
+ public:
+  using ConstantPush::ConstantPush;
+  std::vector<std::string> work_channels() const override { return {}; }
+};
+
 struct Run {
   Scenario scenario;
   TetherModel model;
@@ -160,4 +167,47 @@ TEST_CASE("a strike's booked energy is the kinetic energy it gives", "[energy]")
   CHECK(r->sink.d.back().work_j[0] == Approx(given).epsilon(1e-12));
   INFO("residual " << r->summary.energy.residual_j << " J of " << r->summary.energy.exchanged_j << " J");
   CHECK(r->summary.energy.residual_fraction() < 1e-6);
+}
+
+TEST_CASE("the balance's residual, exchange and flag from given terms", "[energy]") {
+  // Hand-worked: from E(0) = K 10 + P -100 + S 5 + C 0 J, a state with K 40, P -90, S 5, C 0,
+  // work 30 J and dissipation 4 J: change 40 J, residual 40 - 30 + 4 = 14 J; exchanged
+  // (30 + 10 + 0 + 0 + 30 + 4) / 2 = 37 J; 14 / 37 is above the 1 % limit.
+  TetherDiagnostics d0, d1;
+  d0.kinetic_j = 10, d0.potential_j = -100, d0.strain_j = 5, d0.work_j = {0.0};
+  d1.kinetic_j = 40, d1.potential_j = -90, d1.strain_j = 5, d1.work_j = {30.0}, d1.dissipated_j = 4;
+  EnergyBalance b;
+  b.observe(0.0, d0);
+  CHECK(b.residual_j == 0.0);
+  b.observe(7.0, d1);
+  CHECK(b.residual_j == Approx(14.0).epsilon(1e-15));
+  CHECK(b.residual_time_s == 7.0);
+  CHECK(b.exchanged_j == Approx(37.0).epsilon(1e-15));
+  CHECK(b.residual_fraction() == Approx(14.0 / 37.0).epsilon(1e-15));
+  CHECK(b.above_limit());
+  // The same with 43.9 J of work booked: residual 0.1 J, 0.1 / 43.95 < 1 %: not flagged.
+  d1.work_j = {43.9};
+  EnergyBalance c;
+  c.observe(0.0, d0);
+  c.observe(7.0, d1);
+  CHECK(c.residual_j == Approx(0.1).epsilon(1e-12));
+  CHECK(c.exchanged_j == Approx(43.95).epsilon(1e-15));
+  CHECK_FALSE(c.above_limit());
+}
+
+TEST_CASE("a force whose work is not booked makes the budget flag its run", "[energy]") {
+  // The first case's push without its channel: the string's energy changes by F . dx with
+  // nothing to explain it, so the residual is the whole exchange (fraction about 1).
+  BenchSpec s;
+  s.far_end_fixed = true;
+  s.pretension_n = 10.0;
+  s.elements = 20;
+  s.duration_s = 0.02;
+  s.output_interval_s = 1e-3;
+  const auto r = run_with(s, std::make_shared<UnbookedPush>(10, Eigen::Vector3d(0.0, 1e-3, 0.0)));
+  REQUIRE(r->summary.status == RunStatus::complete);
+  REQUIRE(r->channels.empty());
+  INFO("residual " << r->summary.energy.residual_j << " J of " << r->summary.energy.exchanged_j << " J");
+  CHECK(r->summary.energy.residual_fraction() > 0.5);
+  CHECK(r->summary.energy.above_limit());
 }
