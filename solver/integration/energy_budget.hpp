@@ -12,6 +12,10 @@
 // is not booked). It is judged against the energy exchanged,
 //   X(t) = (|dK| + |dP| + |dS| + |dC| + sum_c |W_c| + D) / 2,
 // every joule moved between two terms counting once (a climber lifted by its drive: X = W).
+// The work is integrated as quadratures of the state (TetherSystem::rhs), on the integrator's
+// own steps and to its order, not from the outputs: measured on the storm scenario (2 h,
+// outputs every minute), the trapezoid rule on the recorded drag power gave the air's work
+// 17 % too large and a residual of 0.48 of the energy exchanged; the quadrature's is 2.8e-5.
 #include <cmath>
 #include <cstddef>
 
