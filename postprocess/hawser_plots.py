@@ -327,7 +327,7 @@ def energy_budget_figure(time_s, energy_J, climbers_J, work_J, limit=None):
     curves = [("change of K + P + S" + (" + C" if climbers_J is not None else ""), d_mech, "k", "-")]
     curves += [(f"work: {k.replace('_', ' ')}", w, None, "--") for k, w in works.items()]
     curves.append(("- dissipated D", -dissipated, "tab:purple", ":"))
-    curves.append(("sum of work - D", explained, "tab:orange", "-."))
+    curves.append(("sum of work - D", explained, "0.45", "-."))
     ef, eu = si_scale(np.concatenate([c[1] for c in curves]), "J")
     for label, y, color, style in curves:
         axes[0].plot(t, y / ef, label=label, color=color, linestyle=style)
@@ -342,10 +342,10 @@ def energy_budget_figure(time_s, energy_J, climbers_J, work_J, limit=None):
     if x_max > 0:
         axes[1].plot(t, residual / x_max, color="tab:red")
         axes[1].set_ylabel("residual / exchanged")
-        if limit:
+        frac = float(np.max(np.abs(residual))) / x_max
+        if limit and frac > 0.1 * limit:  # the limit lines only where they do not flatten r
             for sign in (1, -1):
                 axes[1].axhline(sign * limit, color="0.5", lw=0.8, ls="--")
-        frac = float(np.max(np.abs(residual))) / x_max
         note = f"largest |residual| {frac:.2g} of {x_max:.3g} J exchanged"
         if limit:
             note += f" (flagged above {limit:g})"
