@@ -86,9 +86,9 @@ class TetherSystem : public OdeSystem {
   /// The mass matrix per axis (the same for x, y, z): lumped node masses plus each climber's
   /// m w w^T, so tridiagonal: diag_[k], off_[k] between k and k+1. Rebuilt for time t.
   void assemble_mass(double t);
-  /// Solves M a = f for the free nodes, prescribed nodes having zero acceleration: a 2x2
-  /// solve per lone climber (the Sherman-Morrison formula), the tridiagonal (Thomas)
-  /// algorithm on runs of nodes coupled by several climbers; a = f / m elsewhere.
+  /// Solves M a = f for the free nodes, prescribed nodes having zero acceleration: the
+  /// tridiagonal (Thomas) algorithm on each run of nodes coupled by climbers (a lone
+  /// climber's run is two nodes); a = f / m elsewhere.
   void solve_mass(Matrix3X& f_to_a) const;
   Eigen::VectorXd diag_, inverse_mass_, off_;
   std::vector<std::size_t> touched_;  // nodes whose mass entries differ from the lumped ones

@@ -1,4 +1,4 @@
-"""Climbers through the command line (issue 4): bad input and the result file.
+"""Climbers through the command line: bad input and the result file.
 
 Bad input: each case writes the base scenario with one fault in its `climbers` or `schedules`
 list and runs `hawser run`; it must exit 2 (architecture.md, exit codes), write nothing on

@@ -1,4 +1,4 @@
-"""The environment through the command line (issue 5, items 5-9): the storm and cut scenarios
+"""The environment through the command line: the storm and cut scenarios
 run shortened and leave their environment datasets in the result file; bad environment and
 event keys are refused with exit code 2, the file:line: of the fault and the key's path.
 

@@ -1,4 +1,4 @@
-// The environment in time-domain runs (issue 5, items 5-9): drag of the wind, tides of the Moon
+// The environment in time-domain runs: drag of the wind, tides of the Moon
 // and the Sun, J2, cuts and strikes, and the keys that set them up. Every check value names
 // its source.
 #include "catch_compat.hpp"
