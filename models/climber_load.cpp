@@ -197,7 +197,8 @@ void ClimberLoad::work_power(const TetherState& s, const Matrix3X&, double* powe
   const std::vector<std::string> channels = work_channels();
   std::fill(power_w, power_w + channels.size(), 0.0);
   auto slot = [&](const std::string& name) {
-    return static_cast<std::size_t>(std::find(channels.begin(), channels.end(), name) - channels.begin());
+    const auto it = std::find(channels.begin(), channels.end(), name);
+    return static_cast<std::size_t>(it - channels.begin());
   };
   const std::size_t drag = slot("drag");
   std::vector<double> p;
@@ -283,7 +284,8 @@ std::vector<OutputAttribute> ClimberLoad::output_attributes() const {
     out.push_back({g, "sudden_load", c.sudden ? 1.0 : 0.0, ""});
     // from_m, to_m and the speeds are along this (scenario key climber_speeds).
     out.push_back({g, "profile_measured_over", 0.0,
-                   path_ == s_nodes_ ? "unstretched ribbon (material coordinate)" : "stretched ribbon at rest"});
+                   path_ == s_nodes_ ? "unstretched ribbon (material coordinate)"
+                                     : "stretched ribbon at rest"});
     out.push_back({g, "profile", 0.0, table});
     out.push_back({g, "meaning", 0.0,
                    "s: material coordinate (unstretched arc length from the anchor); from_m, to_m: "

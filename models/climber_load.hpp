@@ -118,7 +118,7 @@ class ClimberLoad : public ForceModel {
 
   std::vector<Climber> climbers_;
   std::vector<double> s_nodes_;
-  std::vector<double> path_;  // the profiles' coordinate at the nodes (set_path; s_nodes_ by default)
+  std::vector<double> path_;  // the profiles' coordinate at the nodes (set_path; default s_nodes_)
   std::vector<std::shared_ptr<const ForceModel>> point_models_;
   Matrix3X reference_;
   std::shared_ptr<const BarElements> bars_;     // null: no tensions in the outputs

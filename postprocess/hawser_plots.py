@@ -324,7 +324,8 @@ def energy_budget_figure(time_s, energy_J, climbers_J, work_J, limit=None):
     dissipated = np.asarray(energy_J.get("dissipated", zero), float)
     works = {k: np.asarray(v, float) for k, v in sorted(work_J.items())}
     explained = sum(works.values(), zero) - dissipated
-    curves = [("change of K + P + S" + (" + C" if climbers_J is not None else ""), d_mech, "k", "-")]
+    stored = "change of K + P + S" + (" + C" if climbers_J is not None else "")
+    curves = [(stored, d_mech, "k", "-")]
     curves += [(f"work: {k.replace('_', ' ')}", w, None, "--") for k, w in works.items()]
     curves.append(("- dissipated D", -dissipated, "tab:purple", ":"))
     curves.append(("sum of work - D", explained, "0.45", "-."))

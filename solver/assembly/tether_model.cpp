@@ -126,7 +126,8 @@ TetherModel build_model(const Scenario& sc) {
   // Climbers' positions and speeds along the ribbon at rest, stretched (what the wheels see),
   // or along the unstretched ribbon (material coordinate) when the scenario asks for it.
   const bool over_stretched = sc.climber_speeds == ClimberSpeedReference::stretched_ribbon;
-  loads.parked = build_climbers(sc.climbers, reference, over_stretched ? reference : m.equilibrium.s0_m);
+  loads.parked =
+      build_climbers(sc.climbers, reference, over_stretched ? reference : m.equilibrium.s0_m);
   if (over_stretched) loads.climber_path = reference;
   loads.counterweight_kg = m.mesh.counterweight_mass;
   loads.mean_wind = m.mean_drag != nullptr;

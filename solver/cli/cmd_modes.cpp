@@ -71,7 +71,8 @@ std::string modes_table(const Scenario& sc, const TetherModel& model, const Moda
     const Mode& m = r.modes[i];
     const double where = bench ? m.peak_altitude_m : m.peak_altitude_m / 1e3;
     std::snprintf(buf, sizeof buf, "  %4zu  %14.7g %13.6g %14.4g  %-12s %14.6g %10.3f %10.3f %12.3f\n", i + 1,
-                  m.period_s, m.period_s / 3600.0, shown_damping_ratio(m.damping_ratio), mode_kind_name(m.kind), where,
+                  m.period_s, m.period_s / 3600.0, shown_damping_ratio(m.damping_ratio),
+                  mode_kind_name(m.kind), where,
                   m.kinetic_fraction[0], m.kinetic_fraction[1], m.kinetic_fraction[2]);
     os << buf;
   }

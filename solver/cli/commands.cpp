@@ -113,9 +113,11 @@ void print_summary(const RunSummary& s, const std::string& file) {
 }
 }  // namespace
 
-int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume, bool overwrite) {
+int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume,
+            bool overwrite) {
   // Before any work: a new file's folder must exist and no file be replaced unasked.
-  if (resume.empty()) check_output_path(output.empty() ? default_output(opt.scenario) : output, overwrite);
+  if (resume.empty())
+    check_output_path(output.empty() ? default_output(opt.scenario) : output, overwrite);
   const Scenario sc = load_scenario(opt.scenario, opt.overrides);
   if (!sc.simulation.given)
     throw InputError("error: " + sc.where + ": simulation: missing: `hawser run` needs a simulation "

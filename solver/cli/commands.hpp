@@ -23,6 +23,7 @@ void check_output_path(const std::string& path, bool overwrite);
 /// `output` empty: <scenario file name without .yaml>.h5 in the current directory.
 /// `resume`: a killed run's result file to continue (empty: a new run).
 /// `overwrite`: replace an existing file (refused otherwise, before any work).
-int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume, bool overwrite = false);
+int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume,
+            bool overwrite = false);
 
 }  // namespace hawser

@@ -29,13 +29,15 @@ int main(int argc, char** argv) {
   design->add_flag("--json", json, "print JSON (stable keys, units in the key names)");
   CLI::App* keys = app.add_subcommand("keys", "print the reference of every scenario key with its unit and meaning");
   std::string keys_prefix;
-  keys->add_option("PREFIX", keys_prefix, "only the keys whose path starts with this (climbers, simulation.rtol)");
+  keys->add_option("PREFIX", keys_prefix,
+                   "only the keys whose path starts with this (climbers, simulation.rtol)");
   bool overwrite = false;
   CLI::App* run = app.add_subcommand("run", "time-domain simulation, written to an HDF5 result file");
   add_common(run);
   std::string output;
   run->add_option("-o,--output", output, "result file (default: <scenario name>.h5 in the current directory)");
-  run->add_flag("--overwrite", overwrite, "replace the result file if it exists (refused otherwise)");
+  run->add_flag("--overwrite", overwrite,
+                "replace the result file if it exists (refused otherwise)");
   std::string resume;
   run->add_option("--resume", resume,
                   "continue the run a killed `hawser run` left in this result file (same scenario and --set values)")

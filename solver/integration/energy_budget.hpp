@@ -37,7 +37,9 @@ struct EnergyBalance {
   double residual_time_s = 0;  // when [s]
   double exchanged_j = 0;      // the largest X seen [J]
   /// |residual| / exchanged (0 when nothing was exchanged).
-  double residual_fraction() const { return exchanged_j > 0 ? std::abs(residual_j) / exchanged_j : 0.0; }
+  double residual_fraction() const {
+    return exchanged_j > 0 ? std::abs(residual_j) / exchanged_j : 0.0;
+  }
   bool above_limit() const { return residual_fraction() > kEnergyResidualLimit; }
   /// Takes one output's terms into the balance (the first sets E(0)).
   void observe(double t_s, const TetherDiagnostics& d);

@@ -91,8 +91,9 @@ def main():
                     "/energy/climbers = m Phi(r) + m v^2 / 2 for the parked climber",
                     f"{got:.12g} vs {expected:.12g} J")
         # Other channels: a cut (its element's strain energy goes with it) and the storm's drag.
-        for name, extra, channel, sign in (("cut", [], "cuts", -1.0),
-                                           ("storm", ["--set", "simulation.duration=1 h"], "drag", 0.0)):
+        cases = (("cut", [], "cuts", -1.0),
+                 ("storm", ["--set", "simulation.duration=1 h"], "drag", 0.0))
+        for name, extra, channel, sign in cases:
             out = os.path.join(tmp, f"{name}.h5")
             path = os.path.join(a.source, "scenarios", f"{name}.yaml")
             p = subprocess.run([a.hawser, "run", path, "-o", out, *extra], capture_output=True,
@@ -104,8 +105,10 @@ def main():
                 frac = r_max / x_max
                 print(f"     {name}: channels {channels}; largest residual {r_max:.4g} J of "
                       f"{x_max:.4g} J exchanged ({frac:.3g})")
-                c.check(channel in channels, f"{name}: work channel {channel} recorded", str(channels))
-                c.check(frac < 1e-3, f"{name}: residual below 1e-3 of the energy exchanged", f"{frac:.3g}")
+                c.check(channel in channels, f"{name}: work channel {channel} recorded",
+                        str(channels))
+                c.check(frac < 1e-3, f"{name}: residual below 1e-3 of the energy exchanged",
+                        f"{frac:.3g}")
                 if channel in channels:
                     w = h[f"/energy/work/{channel}"][-1]
                     c.check(sign == 0.0 or w * sign > 0, f"{name}: {channel} has the expected sign",

@@ -37,7 +37,8 @@ from cli_checks import Checks, command_line, text_attr
 STRING = """\
 name: undamped test string
 material: {density: 7850, youngs_modulus: 200 GPa, ultimate_strength: 1 GPa, kind: invented}
-field: {kind: uniform, gravity: 0, cable_length: 10 m, cable_area: 1 mm^2, far_end: fixed, pretension: 100 N}
+field: {kind: uniform, gravity: 0, cable_length: 10 m, cable_area: 1 mm^2, far_end: fixed,
+        pretension: 100 N}
 mesh: {elements: 40}
 """
 
@@ -58,7 +59,8 @@ def main():
             f.write("precious")
         p = hawser("run", demo, "-o", out, *short)
         c.check(p.returncode == 2, "run -o EXISTING exits 2", f"{p.returncode} {p.stderr}")
-        c.check(out in p.stderr and "--overwrite" in p.stderr, "the message names the file and --overwrite",
+        c.check(out in p.stderr and "--overwrite" in p.stderr,
+                "the message names the file and --overwrite",
                 p.stderr)
         with open(out) as f:
             c.check(f.read() == "precious", "the existing file is untouched")
@@ -77,7 +79,8 @@ def main():
         t0 = time.monotonic()
         p = hawser("run", demo, "-o", missing)
         took = time.monotonic() - t0
-        c.check(p.returncode == 2, "run -o MISSING_FOLDER/x.h5 exits 2", f"{p.returncode} {p.stderr}")
+        c.check(p.returncode == 2, "run -o MISSING_FOLDER/x.h5 exits 2",
+                f"{p.returncode} {p.stderr}")
         c.check("does not exist" in p.stderr and "no_such_folder" in p.stderr,
                 "the message names the missing folder", p.stderr)
         c.check("hawser run:" not in p.stdout, "no run was started", p.stdout[-300:])
@@ -88,8 +91,10 @@ def main():
         c.check(p.returncode == 2 and "needs a command" in p.stderr and "run" in p.stderr,
                 "no command: exit 2 and the list of commands", f"{p.returncode} {p.stderr}")
         p = hawser("frobnicate", demo)
-        c.check(p.returncode == 2 and "unknown command 'frobnicate'" in p.stderr and "design" in p.stderr,
-                "unknown command: exit 2, named, with the list of commands", f"{p.returncode} {p.stderr}")
+        c.check(p.returncode == 2 and "unknown command 'frobnicate'" in p.stderr
+                and "design" in p.stderr,
+                "unknown command: exit 2, named, with the list of commands",
+                f"{p.returncode} {p.stderr}")
 
         # 4. keys PREFIX.
         full = hawser("keys").stdout
@@ -97,10 +102,12 @@ def main():
         heads = [ln for ln in some.splitlines() if ln and not ln.startswith(" ")]
         c.check(heads and all(h.startswith("climbers") for h in heads),
                 "keys climbers: every key listed starts with climbers", str(heads[:3]))
-        c.check(0 < len(some.splitlines()) < len(full.splitlines()) / 3, "keys climbers is a short part",
+        c.check(0 < len(some.splitlines()) < len(full.splitlines()) / 3,
+                "keys climbers is a short part",
                 f"{len(some.splitlines())} of {len(full.splitlines())} lines")
         p = hawser("keys", "no_such_key")
-        c.check(p.returncode == 2 and "no_such_key" in p.stderr, "keys NO_MATCH: exit 2, named", p.stderr)
+        c.check(p.returncode == 2 and "no_such_key" in p.stderr, "keys NO_MATCH: exit 2, named",
+                p.stderr)
 
         # 5. mesh.first_element_length: documented as the as-built length at rest; the code.
         doc = hawser("keys", "mesh.first_element_length").stdout
@@ -131,8 +138,10 @@ def main():
         c.check("shown as 0 below 1e-12" in p.stdout, "the threshold is stated", p.stdout[-400:])
         p = hawser("modes", string, "-k", "6", "--json")
         j = json.loads(p.stdout)
-        c.check(all(m["damping_ratio"] == 0 for m in j["modes"]) and j["damping_ratio_zero_below"] == 1e-12,
-                "JSON: damping ratios 0, threshold given", str([m["damping_ratio"] for m in j["modes"]]))
+        c.check(all(m["damping_ratio"] == 0 for m in j["modes"])
+                and j["damping_ratio_zero_below"] == 1e-12,
+                "JSON: damping ratios 0, threshold given",
+                str([m["damping_ratio"] for m in j["modes"]]))
 
         # 8. Climber speeds over the stretched ribbon.
         runs = {}
@@ -149,7 +158,8 @@ def main():
             l0 = h["/mesh/element_L0"][:]
             built = h["/mesh/as_built_position"][:]
             s0 = h["/mesh/s0"][:]
-            c.check(text_attr(h["/climbers/kite"], "profile_measured_over") == "stretched ribbon at rest",
+            c.check(text_attr(h["/climbers/kite"], "profile_measured_over")
+                    == "stretched ribbon at rest",
                     "the file says what the speed is measured over")
             end_stretched = h["/climbers/kite"].attrs["end_time_s"]
         # Cruise: between 10 and 20 min (acceleration to 55.6 m/s takes 111 s; 600 km takes
@@ -169,11 +179,13 @@ def main():
             s = h["/climbers/kite/s"][:]
             ds0_dt = (s[k] - s[i]) / (t[k] - t[i])
             end_unstretched = h["/climbers/kite"].attrs["end_time_s"]
-            c.check(text_attr(h["/climbers/kite"], "profile_measured_over").startswith("unstretched"),
+            c.check(text_attr(h["/climbers/kite"], "profile_measured_over")
+                    .startswith("unstretched"),
                     "the old convention says so in the file")
         c.check(abs(ds0_dt - cruise) <= 1e-6 * cruise,
                 "over_unstretched_ribbon: 200 km/h along the material coordinate", f"{ds0_dt:.9g}")
-        c.check(end_stretched > end_unstretched * 1.01, "the same climb takes longer over the stretched ribbon",
+        c.check(end_stretched > end_unstretched * 1.01,
+                "the same climb takes longer over the stretched ribbon",
                 f"{end_stretched:.6g} s against {end_unstretched:.6g} s")
 
         # 9. design.
@@ -194,11 +206,13 @@ def main():
         d, m = j["design"], j["material"]
         a0 = d["base_area_m2"]
         c.check(abs(d["base_width_m"] - math.sqrt(a0 * 1000)) <= 1e-12 * d["base_width_m"]
-                and abs(d["base_thickness_m"] - math.sqrt(a0 / 1000)) <= 1e-12 * d["base_thickness_m"],
+                and abs(d["base_thickness_m"] - math.sqrt(a0 / 1000))
+                <= 1e-12 * d["base_thickness_m"],
                 "ribbon width and thickness: sqrt(A q), sqrt(A / q) with q = 1000")
         g0 = 3.986004418e14 / 6378137.0 ** 2
         bl = m["ultimate_strength_pa"] / (m["density_kg_m3"] * g0)
-        c.check(abs(d["breaking_length_m"] - bl) <= 1e-12 * bl, "breaking length sigma_u / (rho g0)",
+        c.check(abs(d["breaking_length_m"] - bl) <= 1e-12 * bl,
+                "breaking length sigma_u / (rho g0)",
                 f"{d['breaking_length_m']} vs {bl}")
         eps = d["design_stress_pa"] / m["youngs_modulus_pa"]
         stretch = d["tether_length_m"] * eps / (1 + eps)

@@ -28,7 +28,9 @@ class ConstantPush : public ForceModel {
  public:
   ConstantPush(std::size_t node, const Eigen::Vector3d& f_n) : node_(node), f_(f_n) {}
   std::string name() const override { return "constant push"; }
-  void add_forces(const TetherState&, Matrix3X& f) const override { f.col(static_cast<Eigen::Index>(node_)) += f_; }
+  void add_forces(const TetherState&, Matrix3X& f) const override {
+    f.col(static_cast<Eigen::Index>(node_)) += f_;
+  }
   void add_jacobian(const TetherState&, NodeJacobian&) const override {}
   std::vector<std::string> work_channels() const override { return {"push"}; }
 
@@ -91,12 +93,14 @@ TEST_CASE("a constant force's booked work is F . displacement, and the budget cl
   INFO("largest work " << largest << " J; largest |booked - F . dx| " << worst << " J");
   CHECK(largest > 1e-8);  // about F times 50 um: the push did work
   CHECK(worst <= 1e-6 * largest);
-  INFO("residual " << r->summary.energy.residual_j << " J of " << r->summary.energy.exchanged_j << " J");
+  INFO("residual " << r->summary.energy.residual_j << " J of " << r->summary.energy.exchanged_j
+                    << " J");
   CHECK(r->summary.energy.exchanged_j >= largest);
   CHECK(r->summary.energy.residual_fraction() < 1e-6);
 }
 
-TEST_CASE("Kelvin-Voigt dissipation of a one-mass oscillator matches the damped oscillator's", "[energy]") {
+TEST_CASE("Kelvin-Voigt dissipation of a one-mass oscillator matches the damped oscillator's",
+          "[energy]") {
   // One element hanging under gravity, its free end the only mass m = rho A L / 2; stiffness
   // k = EA / L0. tau = 2 zeta / wn gives the damping ratio zeta = 0.05 (c = tau k). The kick
   // v0 = 1 mm/s swings it by about 0.7 um about a static stretch of about 4.9 um: always taut,
@@ -134,7 +138,8 @@ TEST_CASE("Kelvin-Voigt dissipation of a one-mass oscillator matches the damped 
     worst = std::max(worst, std::abs(r->sink.d[i].dissipated_j - dissipated));
   }
   const double total = 0.5 * m * v0 * v0;
-  INFO("kinetic energy given " << total << " J; dissipated at the end " << r->sink.d.back().dissipated_j
+  INFO("kinetic energy given " << total << " J; dissipated at the end "
+                               << r->sink.d.back().dissipated_j
                                << " J; largest error " << worst << " J");
   // After 12 periods e^(-2 z wn t) = e^(-0.2 * 12 pi) leaves about 5e-4 of it.
   CHECK(r->sink.d.back().dissipated_j > 0.99 * total);
@@ -153,9 +158,9 @@ TEST_CASE("a strike's booked energy is the kinetic energy it gives", "[energy]")
   s.output_interval_s = 1e-3;
   s.rtol = 1e-9;
   auto r = std::make_unique<Run>();
-  r->scenario = load_scenario_text(scenario_text(s) +
-                                       "events:\n  strikes:\n    - {node: 5, time: 0.01, delta_v: [0, 0.1, 0]}\n",
-                                   "bench.yaml", {});
+  const std::string strike =
+      "events:\n  strikes:\n    - {node: 5, time: 0.01, delta_v: [0, 0.1, 0]}\n";
+  r->scenario = load_scenario_text(scenario_text(s) + strike, "bench.yaml", {});
   r->model = build_model(r->scenario);
   TetherSystem sys(r->model);
   REQUIRE(sys.work_channels() == std::vector<std::string>{"strikes"});
@@ -165,7 +170,8 @@ TEST_CASE("a strike's booked energy is the kinetic energy it gives", "[energy]")
   const double given = 0.5 * r->model.mesh.node_mass[5] * 0.1 * 0.1;
   CHECK(r->sink.d.front().work_j[0] == 0.0);
   CHECK(r->sink.d.back().work_j[0] == Approx(given).epsilon(1e-12));
-  INFO("residual " << r->summary.energy.residual_j << " J of " << r->summary.energy.exchanged_j << " J");
+  INFO("residual " << r->summary.energy.residual_j << " J of " << r->summary.energy.exchanged_j
+                    << " J");
   CHECK(r->summary.energy.residual_fraction() < 1e-6);
 }
 
@@ -207,7 +213,8 @@ TEST_CASE("a force whose work is not booked makes the budget flag its run", "[en
   const auto r = run_with(s, std::make_shared<UnbookedPush>(10, Eigen::Vector3d(0.0, 1e-3, 0.0)));
   REQUIRE(r->summary.status == RunStatus::complete);
   REQUIRE(r->channels.empty());
-  INFO("residual " << r->summary.energy.residual_j << " J of " << r->summary.energy.exchanged_j << " J");
+  INFO("residual " << r->summary.energy.residual_j << " J of " << r->summary.energy.exchanged_j
+                    << " J");
   CHECK(r->summary.energy.residual_fraction() > 0.5);
   CHECK(r->summary.energy.above_limit());
 }
