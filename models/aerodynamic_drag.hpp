@@ -30,7 +30,7 @@
 //   de1/dd = (I - e1 e1^T) / |b| * (-((n.east) I + n east^T) P / l),  b = P east;
 // all terms vanish with |a| (F is quadratic in w).
 // Drag is an external force doing work from the wind: energy() and dissipated_power() stay 0
-// (it is neither stored nor dissipated tether energy).
+// (it is neither stored nor dissipated tether energy); its work is booked as "drag".
 // Climbers: a climber's own drag (its Cd A, key climbers[].drag) takes the air at its place
 // from air_at() (models/climber_load.cpp).
 #include <memory>
@@ -80,6 +80,8 @@ class AerodynamicDrag : public ForceModel {
   std::string name() const override { return "aerodynamic drag"; }
   bool exact_position_jacobian() const override { return false; }  // see the Jacobian above
   void add_forces(const TetherState& s, Matrix3X& f) const override;
+  /// The air's work on the ribbon, F . v on the nodes (the climbers' drag books there too).
+  std::vector<std::string> work_channels() const override { return {"drag"}; }
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
   /// Wind windows and gust onsets and ends.
   std::vector<double> event_times() const override { return wind_->event_times(); }

@@ -13,6 +13,7 @@ ClimberLoad::ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_no
                          std::shared_ptr<const AerodynamicDrag> air)
     : climbers_(std::move(climbers)),
       s_nodes_(std::move(s_nodes)),
+      path_(s_nodes_),
       point_models_(std::move(point_models)),
       reference_(reference_position),
       bars_(std::move(bars)),
@@ -20,7 +21,7 @@ ClimberLoad::ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_no
 
 std::vector<Attachment> ClimberLoad::attachments(double t) const {
   std::vector<Attachment> out;
-  const std::size_t n_el = s_nodes_.size() - 1;
+  const std::size_t n_el = path_.size() - 1;
   for (std::size_t c = 0; c < climbers_.size(); ++c) {
     const Climber& cl = climbers_[c];
     ClimberProfile::Kinematics k{cl.profile.from(), 0.0, 0.0};
@@ -37,12 +38,12 @@ std::vector<Attachment> ClimberLoad::attachments(double t) const {
     }
     // The element entered: going down, a climber exactly on node k is on element k-1.
     const bool down = k.speed_m_s < 0.0 || (k.speed_m_s == 0.0 && cl.profile.direction() < 0 && !parked_);
-    auto it = down ? std::lower_bound(s_nodes_.begin(), s_nodes_.end(), k.s_m)
-                   : std::upper_bound(s_nodes_.begin(), s_nodes_.end(), k.s_m);
-    long e = static_cast<long>(it - s_nodes_.begin()) - 1;
+    auto it = down ? std::lower_bound(path_.begin(), path_.end(), k.s_m)
+                   : std::upper_bound(path_.begin(), path_.end(), k.s_m);
+    long e = static_cast<long>(it - path_.begin()) - 1;
     e = std::min<long>(std::max<long>(e, 0), static_cast<long>(n_el) - 1);
-    const double len = s_nodes_[e + 1] - s_nodes_[e];
-    Attachment a{c, static_cast<std::size_t>(e), (k.s_m - s_nodes_[e]) / len, k.speed_m_s / len, k.accel_m_s2 / len,
+    const double len = path_[e + 1] - path_[e];
+    Attachment a{c, static_cast<std::size_t>(e), (k.s_m - path_[e]) / len, k.speed_m_s / len, k.accel_m_s2 / len,
                  mass};
     a.xi = std::min(1.0, std::max(0.0, a.xi));
     out.push_back(a);
@@ -131,7 +132,7 @@ std::vector<double> ClimberLoad::event_times() const {
   std::vector<double> t;
   for (const Climber& c : climbers_) {
     for (double ts : c.profile.segment_times()) t.push_back(ts);
-    for (double tc : c.profile.crossing_times(s_nodes_)) t.push_back(tc);
+    for (double tc : c.profile.crossing_times(path_)) t.push_back(tc);
   }
   std::sort(t.begin(), t.end());
   t.erase(std::unique(t.begin(), t.end()), t.end());
@@ -154,9 +155,9 @@ double ClimberLoad::drive_power(const TetherState& s) const {
   return p;
 }
 
-double ClimberLoad::climber_energy(const TetherState& s) const {
+double ClimberLoad::climber_energy_at(const TetherState& s, double t_attach) const {
   double e = 0.0;
-  for (const Attachment& at : attachments(s.t)) {
+  for (const Attachment& at : attachments(t_attach)) {
     const PointState p = point(s, at);
     Matrix3X x(3, 1), v = Matrix3X::Zero(3, 1);
     x.col(0) = p.r;
@@ -167,6 +168,66 @@ double ClimberLoad::climber_energy(const TetherState& s) const {
     e += 0.5 * at.mass_kg * p.v.squaredNorm();
   }
   return e;
+}
+
+double ClimberLoad::material_coordinate(double p) const {
+  const auto it = std::upper_bound(path_.begin(), path_.end(), p);
+  std::size_t e = static_cast<std::size_t>(std::max<long>(0, (it - path_.begin()) - 1));
+  e = std::min(e, path_.size() - 2);
+  const double xi = (p - path_[e]) / (path_[e + 1] - path_[e]);
+  return s_nodes_[e] + xi * (s_nodes_[e + 1] - s_nodes_[e]);
+}
+
+double ClimberLoad::event_energy_jump(const TetherState& s) const {
+  return climber_energy_at(s, s.t + kEventWindow_s) - climber_energy_at(s, s.t - kEventWindow_s);
+}
+
+std::vector<std::string> ClimberLoad::work_channels() const {
+  std::vector<std::string> c{"climber_drives"};
+  const bool drag = air_ && std::any_of(climbers_.begin(), climbers_.end(),
+                                        [](const Climber& cl) { return cl.drag_area_m2 > 0.0; });
+  if (drag) c.push_back("drag");
+  for (const auto& pm : point_models_)
+    for (const std::string& name : pm->work_channels())
+      if (std::find(c.begin(), c.end(), name) == c.end()) c.push_back(name);
+  return c;
+}
+
+void ClimberLoad::work_power(const TetherState& s, const Matrix3X&, double* power_w) const {
+  const std::vector<std::string> channels = work_channels();
+  std::fill(power_w, power_w + channels.size(), 0.0);
+  auto slot = [&](const std::string& name) {
+    const auto it = std::find(channels.begin(), channels.end(), name);
+    return static_cast<std::size_t>(it - channels.begin());
+  };
+  const std::size_t drag = slot("drag");
+  std::vector<double> p;
+  for (const Attachment& at : attachments(s.t)) {
+    const PointState pt = point(s, at);
+    const Eigen::Vector3d relative = at.xi_dot * (s.x.col(at.element + 1) - s.x.col(at.element));
+    power_w[0] += reaction(s, at).dot(relative);
+    if (drag < channels.size() && climbers_[at.climber].drag_area_m2 > 0.0) {
+      const Eigen::Vector3d f_air = point_force(s.t, pt, at, nullptr, nullptr) -
+                                    body_force(s.t, pt, at.mass_kg, nullptr, nullptr);
+      power_w[drag] += f_air.dot(pt.v);
+    }
+    // The point models that do work (tides) on the climber as on a point mass.
+    Matrix3X x(3, 1), v(3, 1);
+    x.col(0) = pt.r;
+    v.col(0) = pt.v;
+    Eigen::VectorXd m(1);
+    m[0] = at.mass_kg;
+    const TetherState one{s.t, x, v, m};
+    for (const auto& pm : point_models_) {
+      const std::vector<std::string> own = pm->work_channels();
+      if (own.empty()) continue;
+      Matrix3X f = Matrix3X::Zero(3, 1);
+      pm->add_forces(one, f);
+      p.assign(own.size(), 0.0);
+      pm->work_power(one, f, p.data());
+      for (std::size_t k = 0; k < own.size(); ++k) power_w[slot(own[k])] += p[k];
+    }
+  }
 }
 
 double ClimberLoad::climber_angular_momentum(const TetherState& s, double omega) const {
@@ -221,10 +282,15 @@ std::vector<OutputAttribute> ClimberLoad::output_attributes() const {
     out.push_back({g, "at_end", 0.0, ends[static_cast<int>(c.at_end)]});
     if (c.at_end == ClimberEnd::drop_payload) out.push_back({g, "end_mass_kg", c.end_mass_kg, ""});
     out.push_back({g, "sudden_load", c.sudden ? 1.0 : 0.0, ""});
+    // from_m, to_m and the speeds are along this (scenario key climber_speeds).
+    out.push_back({g, "profile_measured_over", 0.0,
+                   path_ == s_nodes_ ? "unstretched ribbon (material coordinate)"
+                                     : "stretched ribbon at rest"});
     out.push_back({g, "profile", 0.0, table});
     out.push_back({g, "meaning", 0.0,
                    "s: material coordinate (unstretched arc length from the anchor); from_m, to_m: "
-                   "the profile's ends in it; speeds along the unstretched ribbon"});
+                   "the profile's ends along the line profile_measured_over names; speeds along "
+                   "it"});
   }
   return out;
 }
@@ -238,7 +304,7 @@ void ClimberLoad::sample_outputs(const TetherState& s, const std::vector<std::si
     const auto it = std::find_if(att.begin(), att.end(), [&](const Attachment& a) { return a.climber == c; });
     if (it == att.end()) {  // not on the tether (left, or a sudden load not yet applied)
       const double nan = std::nan("");
-      r[0] = {climbers_[c].profile.at(s.t).s_m};
+      r[0] = {material_coordinate(climbers_[c].profile.at(s.t).s_m)};
       r[1] = {nan};
       r[2] = {0.0};
       r[3] = {nan, nan, nan};

@@ -57,6 +57,14 @@ class ClimberLoad : public ForceModel {
   std::string name() const override { return "climbers"; }
   /// The drag of climbers with a drag area leaves the change of the air with position out.
   bool exact_position_jacobian() const override { return !air_; }
+  /// The coordinate the profiles' positions and speeds are measured along, at every node
+  /// [m]: by default the material coordinate (unstretched arc length, s_nodes); given the
+  /// distance along the ribbon at rest (stretched), a climber's speed is what its wheels see
+  /// over the stretched ribbon. Between nodes both coordinates are linear in the element's
+  /// parameter xi, so a profile p(t) gives xi = (p - p_e) / (p_{e+1} - p_e).
+  void set_path(std::vector<double> path_nodes) { path_ = std::move(path_nodes); }
+  /// The material coordinate [m] of path coordinate p [m].
+  double material_coordinate(double path_m) const;
 
   /// In parked mode (for the starting equilibrium) every climber that is not a sudden load
   /// sits at its start, at rest.
@@ -72,11 +80,26 @@ class ClimberLoad : public ForceModel {
                       std::vector<std::vector<double>>& rows) const override;
 
   /// Kinetic (rotating frame) plus potential energy of the climbers [J].
-  double climber_energy(const TetherState& s) const;
+  double climber_energy(const TetherState& s) const { return climber_energy_at(s, s.t); }
+  /// The same with the climbers where they are at time t_attach_s, on the tether of s.
+  double climber_energy_at(const TetherState& s, double t_attach_s) const;
   /// Angular momentum of the climbers about the spin axis, inertial frame [kg m^2/s].
   double climber_angular_momentum(const TetherState& s, double omega) const;
   /// Power of the drives on the climbers' motion relative to the tether [W]; needs s.a.
   double drive_power(const TetherState& s) const;
+  /// Energy budget: "climber_drives" (drive_power), "drag" when the air acts on a climber,
+  /// and the channels of the point models (the tides' work on the climbers), each as F . v_c.
+  std::vector<std::string> work_channels() const override;
+  void work_power(const TetherState& s, const Matrix3X& own_f, double* power_w) const override;
+  /// The jump of the climbers' energy at an event at time s.t [J], which no force's power
+  /// accounts for: climbers arriving (+) or leaving, dropping a payload (-), and the kink at a
+  /// node crossing, where a climber's velocity in space w^T v + xi' d jumps with the
+  /// direction and stretch of d from element to element (the model applies no impulse
+  /// there). Measured across the instant, kEventWindow_s either side, on the tether of s.
+  double event_energy_jump(const TetherState& s) const;
+  /// Half-width of that instant [s]: wider than the round-off of the event times, narrow
+  /// enough that the climbers move by a negligible amount (1e-6 s at 55 m/s: 55 um).
+  static constexpr double kEventWindow_s = 1e-6;
   const std::vector<Climber>& climbers() const { return climbers_; }
 
  private:
@@ -95,6 +118,7 @@ class ClimberLoad : public ForceModel {
 
   std::vector<Climber> climbers_;
   std::vector<double> s_nodes_;
+  std::vector<double> path_;  // the profiles' coordinate at the nodes (set_path; default s_nodes_)
   std::vector<std::shared_ptr<const ForceModel>> point_models_;
   Matrix3X reference_;
   std::shared_ptr<const BarElements> bars_;     // null: no tensions in the outputs

@@ -94,6 +94,22 @@ class ForceModel {
     add_forces(s, f);
     return dissipated_power(s);
   }
+  /// The energy budget's one hook (DEVELOPERS.md, "Adding a force model"). A model whose
+  /// forces do work that is neither stored in energy() nor lost in dissipated_power() (drag,
+  /// tides, climbers' drives, thrusters, a moving anchor) names the channels its work is
+  /// booked under; the run integrates each channel's power as a quadrature along the
+  /// integrator's own steps and records it as /energy/work/<channel> [J]. Models may share
+  /// a channel (the air's drag on the ribbon and on the climbers both go to "drag").
+  virtual std::vector<std::string> work_channels() const { return {}; }
+  /// Power [W] into each channel of work_channels(), in its order, at state s. `own_f` holds
+  /// this model's forces on the nodes (what add_forces() gave) and s.a the accelerations.
+  /// The default, for one channel: sum_i F_i . v_i, the power of nodal forces on the discrete
+  /// system (exact for it: m_i a_i . v_i sums to the change of its kinetic energy).
+  virtual void work_power(const TetherState& s, const Matrix3X& own_f, double* power_w) const {
+    double p = 0.0;
+    for (Eigen::Index i = 0; i < own_f.cols(); ++i) p += own_f.col(i).dot(s.v.col(i));
+    power_w[0] = p;
+  }
   /// Times at which this model's forces change abruptly (a gust's onset, a cut) [s]: the
   /// integrator stops there so that no step straddles them.
   virtual std::vector<double> event_times() const { return {}; }

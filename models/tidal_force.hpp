@@ -19,6 +19,8 @@ class TidalForce : public ForceModel {
   std::string name() const override { return "tides"; }
   bool acts_on_point_masses() const override { return true; }
   void add_forces(const TetherState& s, Matrix3X& f) const override;
+  /// The tide's work, F . v on the nodes (and on the climbers, through them).
+  std::vector<std::string> work_channels() const override { return {"tides"}; }
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
   /// /environment/tidal_acceleration (K,3) m/s^2 at the recorded nodes.
   std::vector<OutputField> output_fields(const std::vector<std::size_t>& nodes) const override;

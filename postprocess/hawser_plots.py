@@ -310,6 +310,69 @@ def energy_figure(time_s, energy_J):
     return fig
 
 
+def energy_budget_figure(time_s, energy_J, climbers_J, work_J, limit=None):
+    """The energy budget: the change of the mechanical energy E = K + P + S + C since the
+    first output against what explains it, each work channel W_c (drag, tides, climbers'
+    drives, strikes, climbers arriving or leaving) and the dissipated energy D; below, the
+    residual r = dE - sum W_c + D as a fraction of the energy exchanged
+    X = (|dK| + |dP| + |dS| + |dC| + sum |W_c| + D) / 2 (solver/integration/energy_budget.hpp).
+
+    energy_J: the terms of energy_figure; climbers_J: (nt) or None; work_J: channel -> (nt);
+    limit: the residual fraction the run flags (/summary energy_residual_limit), or None.
+    """
+    fig = Figure(figsize=FIGSIZE)
+    axes = fig.subplots(2, 1, sharex=True)
+    tf, tu = time_scale(time_s)
+    t = np.asarray(time_s) / tf
+    stores = [np.asarray(energy_J[k], float) for k in ("kinetic", "potential", "strain")
+              if k in energy_J]
+    if climbers_J is not None:
+        stores.append(np.asarray(climbers_J, float))
+    changes = [s - s[0] for s in stores]
+    zero = np.zeros_like(t, dtype=float)
+    d_mech = sum(changes, zero)
+    dissipated = np.asarray(energy_J.get("dissipated", zero), float)
+    works = {k: np.asarray(v, float) for k, v in sorted(work_J.items())}
+    explained = sum(works.values(), zero) - dissipated
+    stored = "change of K + P + S" + (" + C" if climbers_J is not None else "")
+    curves = [(stored, d_mech, "k", "-")]
+    curves += [(f"work: {k.replace('_', ' ')}", w, None, "--") for k, w in works.items()]
+    curves.append(("- dissipated D", -dissipated, "tab:purple", ":"))
+    curves.append(("sum of work - D", explained, "0.45", "-."))
+    ef, eu = si_scale(np.concatenate([c[1] for c in curves]), "J")
+    for label, y, color, style in curves:
+        axes[0].plot(t, y / ef, label=label, color=color, linestyle=style)
+    axes[0].set_ylabel(f"since t0 [{eu}]")
+    axes[0].set_title("Energy budget: the change of the energy against its causes")
+    _legend(axes[0], loc="best", fontsize="small")
+    axes[0].grid(True, alpha=0.3)
+    residual = d_mech - explained
+    exchanged = 0.5 * (sum((np.abs(c) for c in changes), zero) +
+                       sum((np.abs(w) for w in works.values()), zero) + np.abs(dissipated))
+    x_max = float(np.max(exchanged)) if exchanged.size else 0.0
+    if x_max > 0:
+        axes[1].plot(t, residual / x_max, color="tab:red")
+        axes[1].set_ylabel("residual / exchanged")
+        frac = float(np.max(np.abs(residual))) / x_max
+        if limit and frac > 0.1 * limit:  # the limit lines only where they do not flatten r
+            for sign in (1, -1):
+                axes[1].axhline(sign * limit, color="0.5", lw=0.8, ls="--")
+        note = f"largest |residual| {frac:.2g} of {x_max:.3g} J exchanged"
+        if limit:
+            note += f" (flagged above {limit:g})"
+    else:
+        axes[1].plot(t, residual, color="tab:red")
+        axes[1].set_ylabel("residual [J]")
+        note = "no energy exchanged"
+    axes[1].set_title("Residual r = change - sum of work + D")
+    axes[1].text(0.01, 0.96, note, transform=axes[1].transAxes, va="top", fontsize="small",
+                 bbox=dict(facecolor="white", alpha=0.8, lw=0))
+    axes[1].set_xlabel(f"time [{tu}]")
+    axes[1].grid(True, alpha=0.3)
+    fig.tight_layout()
+    return fig
+
+
 def anchor_force_figure(time_s, force_N):
     """The recorded anchor force (nt, 3) in N, rotating-frame components: up (+x, mostly the
     base tension) above, east (+y) and north (+z) below."""

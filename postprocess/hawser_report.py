@@ -235,6 +235,17 @@ def _figure_plan(ctx):
                  (lambda: hp.energy_figure(r.time_for(energy_rows), r.energy_J))
                  if _rows(energy_rows) else None))
 
+    limit = r.summary_attrs.get("energy_residual_limit")
+    plan.append(("energy_budget", "Energy budget: the change of the mechanical energy (K + P + S, "
+                 "and C, the climbers') against the work that explains it (each channel of "
+                 "/energy/work: drag, tides, climbers' drives, strikes, climbers arriving or "
+                 "leaving) less the dissipated energy D; below, the residual as a fraction of the "
+                 "energy exchanged" + (f", flagged above {limit:g}." if limit else "."),
+                 "/energy/*, /energy/work/* and /time",
+                 (lambda: hp.energy_budget_figure(r.time_for(energy_rows), r.energy_J,
+                                                  r.climbers_energy_J, r.work_J, limit))
+                 if _rows(energy_rows) else None))
+
     plan.append(("anchor_force", "Anchor force as recorded in /anchor/force, in the "
                  "rotating frame's up, east and north components.", "/anchor/force and /time",
                  (lambda: hp.anchor_force_figure(r.time_for(r.anchor_force_N), r.anchor_force_N))
@@ -263,14 +274,23 @@ def _figure_plan(ctx):
 
 def _requested_altitudes(ctx):
     """name -> altitude (m) of the point of the as-built ribbon each climber is told to go to:
-    its profile's end `to_m` is a material coordinate, placed with /mesh/s0 on
-    /mesh/as_built_position (the tether as built, unloaded)."""
+    its profile's end `to_m` is measured along the line its `profile_measured_over` names: the
+    stretched ribbon at rest (distance along /mesh/as_built_position) or the unstretched one
+    (a material coordinate, placed with /mesh/s0); either is then placed on the tether as
+    built, unloaded."""
     r = ctx.result
     if r.s0_m is None or r.as_built_position_m is None or ctx.radius_m is None:
         return {}
-    built_alt_m = np.linalg.norm(r.as_built_position_m, axis=1) - ctx.radius_m
-    return {n: float(np.interp(a["to_m"], r.s0_m, built_alt_m))
-            for n, a in r.climber_attrs.items() if isinstance(a.get("to_m"), (int, float))}
+    built = r.as_built_position_m
+    built_alt_m = np.linalg.norm(built, axis=1) - ctx.radius_m
+    along_m = np.concatenate([[0.0], np.cumsum(np.linalg.norm(np.diff(built, axis=0), axis=1))])
+    out = {}
+    for n, a in r.climber_attrs.items():
+        if not isinstance(a.get("to_m"), (int, float)):
+            continue
+        line = along_m if str(a.get("profile_measured_over", "")).startswith("stretched") else r.s0_m
+        out[n] = float(np.interp(a["to_m"], line, built_alt_m))
+    return out
 
 
 def _climber_caption(ctx, requested):

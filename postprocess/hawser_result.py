@@ -131,6 +131,9 @@ class Result:
         self.node_velocity_m_s = None  # (nt, K, 3)
         self.element_tension_N = None  # (nt, N)
         self.energy_J = {}  # term -> (nt); only the terms present
+        self.climbers_energy_J = None  # (nt) /energy/climbers, when the run has climbers
+        self.work_J = {}  # /energy/work/<channel> -> (nt): the energy budget's work terms
+        self.summary_attrs = {}  # /summary attributes (numbers and texts), when finished
         self.anchor_force_N = None  # (nt, 3)
         self.climbers = {}  # name -> {field: array}
         self.missing = []  # dataset or group paths not in the file (or unreadable)
@@ -279,6 +282,17 @@ def _read_histories(f, r):
             e = _read(f, f"/environment/{key}", r)
             if e is not None:
                 r.environment[key] = e
+    # The energy budget's other terms: present only when the run has them.
+    if "/energy/climbers" in f:
+        r.climbers_energy_J = _read(f, "/energy/climbers", r, ndim=1)
+    if "/energy/work" in f and isinstance(f["/energy/work"], h5py.Group):
+        for channel in f["/energy/work"]:
+            w = _read(f, f"/energy/work/{channel}", r, ndim=1)
+            if w is not None:
+                r.work_J[channel] = w
+    if "/summary" in f:
+        r.summary_attrs = {k: _text(v) if isinstance(v, (bytes, str)) else v
+                           for k, v in f["/summary"].attrs.items()}
     if "/climbers" in f and isinstance(f["/climbers"], h5py.Group):
         for name, grp in f["/climbers"].items():
             if not isinstance(grp, h5py.Group):
@@ -344,6 +358,9 @@ def _trim_time_axis(r):
     energy = {k: cut(f"/energy/{k}", v) for k, v in r.energy_J.items()}
     common = min((len(v) for v in energy.values()), default=0)
     r.energy_J = {k: v[:common] for k, v in energy.items()}  # the terms are summed: same rows
+    if r.climbers_energy_J is not None:
+        r.climbers_energy_J = cut("/energy/climbers", r.climbers_energy_J)[:common]
+    r.work_J = {k: cut(f"/energy/work/{k}", v)[:common] for k, v in r.work_J.items()}
     r.climbers = {n: {k: cut(f"/climbers/{n}/{k}", v) for k, v in c.items() if v is not None}
                   for n, c in r.climbers.items()}
     r.environment = {k: cut(f"/environment/{k}", v) for k, v in r.environment.items()}

@@ -94,6 +94,7 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
     parked = std::make_unique<ClimberLoad>(l.parked, m.equilibrium.s0_m, point_models,
                                            m.mesh.as_built_position, nullptr, air);
     parked->set_parked(true);
+    if (!l.climber_path.empty()) parked->set_path(l.climber_path);
     if (!parked->attachments(0.0).empty()) set.added.push_back(parked.get());
   }
   if (l.mean_wind && m.mean_drag) set.added.push_back(m.mean_drag.get());

@@ -15,6 +15,7 @@ struct TetherModel;
 
 struct StaticLoads {
   std::vector<Climber> parked;  // sitting at profile.from(), a material coordinate s [m]
+  std::vector<double> climber_path;  // or along this coordinate (ClimberLoad::set_path), if given
   double counterweight_kg = 0;  // hung at the top node [kg] (planet tether; ignored on the bench)
   bool mean_wind = false;       // the model's mean_drag (must exist)
   bool tides = false;           // the model's tidal force at t = 0 (must exist)

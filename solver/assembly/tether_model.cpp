@@ -123,7 +123,12 @@ TetherModel build_model(const Scenario& sc) {
   // mean wind.
   const std::vector<double> reference = reference_distance(m.mesh);
   StaticLoads loads;
-  loads.parked = build_climbers(sc.climbers, reference, m.equilibrium.s0_m);
+  // Climbers' positions and speeds along the ribbon at rest, stretched (what the wheels see),
+  // or along the unstretched ribbon (material coordinate) when the scenario asks for it.
+  const bool over_stretched = sc.climber_speeds == ClimberSpeedReference::stretched_ribbon;
+  loads.parked =
+      build_climbers(sc.climbers, reference, over_stretched ? reference : m.equilibrium.s0_m);
+  if (over_stretched) loads.climber_path = reference;
   loads.counterweight_kg = m.mesh.counterweight_mass;
   loads.mean_wind = m.mean_drag != nullptr;
   loads.tides = sc.environment.tides.in_static_state;
@@ -145,6 +150,7 @@ TetherModel build_model(const Scenario& sc) {
       if (b->acts_on_point_masses()) point_models.push_back(b);
     m.climbers = std::make_unique<ClimberLoad>(loads.parked, m.equilibrium.s0_m, point_models,
                                                m.mesh.as_built_position, m.bars, m.drag);
+    if (over_stretched) m.climbers->set_path(reference);
   }
   return m;
 }

@@ -1,6 +1,7 @@
 #include "solver/cli/commands.hpp"
 
 #include <cstdio>
+#include <filesystem>
 #include <iostream>
 #include <memory>
 
@@ -55,9 +56,26 @@ int cmd_design(const CommonOptions& opt, bool json) {
   return 0;
 }
 
-int cmd_keys() {
-  std::cout << KeyReference::builtin().describe();
+int cmd_keys(const std::string& prefix) {
+  const std::string text = KeyReference::builtin().describe(prefix);
+  if (text.empty())
+    throw InputError("error: hawser keys: no scenario key starts with '" + prefix +
+                     "' (`hawser keys` lists them all)\n");
+  std::cout << text;
   return 0;
+}
+
+void check_output_path(const std::string& path, bool overwrite) {
+  namespace fs = std::filesystem;
+  const fs::path p(path);
+  const fs::path folder = p.has_parent_path() ? p.parent_path() : fs::path(".");
+  std::error_code ec;
+  if (!fs::is_directory(folder, ec))
+    throw InputError("error: " + path + ": the output folder " + folder.string() +
+                     " does not exist (create it first)\n");
+  if (fs::exists(p, ec) && !overwrite)
+    throw InputError("error: " + path + ": the file exists; give --overwrite to replace it, or "
+                     "another -o\n");
 }
 
 namespace {
@@ -84,12 +102,24 @@ void print_summary(const RunSummary& s, const std::string& file) {
     std::printf("  slack elements: up to %zu at once, first at t = %.6g s\n", s.max_slack_elements, s.first_slack_time_s);
   for (const auto& r : s.ruptures)
     std::printf("  element %zu reached its ultimate strength (%.4g Pa) at t = %.6g s\n", r.element, r.stress_pa, r.time_s);
+  std::printf("  energy budget: residual %.3g J of %.3g J exchanged (%.2g)\n", s.energy.residual_j,
+              s.energy.exchanged_j, s.energy.residual_fraction());
+  if (s.energy.above_limit())
+    std::fprintf(stderr,
+                 "warning: the energy budget does not close: its residual is %.2g of the energy "
+                 "exchanged (limit %.2g), at t = %.6g s; tighten rtol/atol or look for a force "
+                 "whose work is not booked\n",
+                 s.energy.residual_fraction(), kEnergyResidualLimit, s.energy.residual_time_s);
   std::printf("  results: %s\n", file.c_str());
   std::printf("\n%s", kCautionLines);
 }
 }  // namespace
 
-int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume) {
+int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume,
+            bool overwrite) {
+  // Before any work: a new file's folder must exist and no file be replaced unasked.
+  if (resume.empty())
+    check_output_path(output.empty() ? default_output(opt.scenario) : output, overwrite);
   const Scenario sc = load_scenario(opt.scenario, opt.overrides);
   if (!sc.simulation.given)
     throw InputError("error: " + sc.where + ": simulation: missing: `hawser run` needs a simulation "

@@ -14,9 +14,16 @@ struct CommonOptions {
 
 int cmd_check(const CommonOptions& opt);
 int cmd_design(const CommonOptions& opt, bool json);
-int cmd_keys();
+/// The key reference; with a prefix ("climbers", "simulation.rtol"), only the keys whose path
+/// starts with it (InputError when none does).
+int cmd_keys(const std::string& prefix = "");
+/// Refuses, before any work, an output file that exists (unless `overwrite`) or whose folder
+/// does not (InputError, exit 2).
+void check_output_path(const std::string& path, bool overwrite);
 /// `output` empty: <scenario file name without .yaml>.h5 in the current directory.
 /// `resume`: a killed run's result file to continue (empty: a new run).
-int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume);
+/// `overwrite`: replace an existing file (refused otherwise, before any work).
+int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume,
+            bool overwrite = false);
 
 }  // namespace hawser

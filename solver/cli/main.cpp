@@ -34,10 +34,16 @@ int main(int argc, char** argv) {
   add_common(design);
   design->add_flag("--json", json, "print JSON (stable keys, units in the key names)");
   CLI::App* keys = app.add_subcommand("keys", "print the reference of every scenario key with its unit and meaning");
+  std::string keys_prefix;
+  keys->add_option("PREFIX", keys_prefix,
+                   "only the keys whose path starts with this (climbers, simulation.rtol)");
+  bool overwrite = false;
   CLI::App* run = app.add_subcommand("run", "time-domain simulation, written to an HDF5 result file");
   add_common(run);
   std::string output;
   run->add_option("-o,--output", output, "result file (default: <scenario name>.h5 in the current directory)");
+  run->add_flag("--overwrite", overwrite,
+                "replace the result file if it exists (refused otherwise)");
   std::string resume;
   run->add_option("--resume", resume,
                   "continue the run a killed `hawser run` left in this result file (same scenario and --set values)")
@@ -47,6 +53,7 @@ int main(int argc, char** argv) {
   int modes_k = 10;
   modes->add_option("-k", modes_k, "number of modes, lowest first")->capture_default_str();
   modes->add_option("-o,--output", output, "write the mode shapes to this HDF5 file");
+  modes->add_flag("--overwrite", overwrite, "replace that file if it exists (refused otherwise)");
   modes->add_flag("--json", json, "print JSON (stable keys, units in the key names)");
 
   // Sweeps: many variants of one scenario (solver/cli/cmd_sweep.hpp).
@@ -71,6 +78,25 @@ int main(int argc, char** argv) {
                     "with --slurm: time limit of each task (e.g. 2:00:00)");
   sweep->add_option("--mem", sw.slurm_options.mem, "with --slurm: memory of each task (e.g. 4G)");
 
+  // A missing or unknown command, said in our words (CLI11 would say "A subcommand is
+  // required" or list the word among unexpected arguments).
+  const auto commands = app.get_subcommands([](CLI::App*) { return true; });
+  std::string names;
+  for (const CLI::App* c : commands) names += (names.empty() ? "" : ", ") + c->get_name();
+  if (argc < 2) {
+    std::cerr << "error: hawser needs a command: " << names << " (hawser --help)\n";
+    return 2;
+  }
+  const std::string first = argv[1];
+  if (first.empty() || first[0] != '-') {
+    bool known = false;
+    for (const CLI::App* c : commands) known = known || c->get_name() == first;
+    if (!known) {
+      std::cerr << "error: unknown command '" << first << "'; the commands are " << names
+                << " (hawser --help)\n";
+      return 2;
+    }
+  }
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
@@ -80,9 +106,12 @@ int main(int argc, char** argv) {
   try {
     if (check->parsed()) return cmd_check(opt);
     if (design->parsed()) return cmd_design(opt, json);
-    if (keys->parsed()) return cmd_keys();
-    if (run->parsed()) return cmd_run(opt, output, resume);
-    if (modes->parsed()) return cmd_modes(opt, modes_k, output, json);
+    if (keys->parsed()) return cmd_keys(keys_prefix);
+    if (run->parsed()) return cmd_run(opt, output, resume, overwrite);
+    if (modes->parsed()) {
+      if (!output.empty()) check_output_path(output, overwrite);
+      return cmd_modes(opt, modes_k, output, json);
+    }
     if (sweep->parsed()) return cmd_sweep(sw);
   } catch (const InputError& e) {
     std::cerr << e.what();

@@ -23,6 +23,7 @@ VariantProcess::VariantProcess(const Study& st, const Variant& v, const SweepFol
   }
   args.push_back(resume ? "--resume" : "-o");
   args.push_back(folder.result(v));
+  if (!resume) args.push_back("--overwrite");  // the sweep decided this variant runs anew
   std::vector<char*> argv;
   for (std::string& a : args) argv.push_back(a.data());
   argv.push_back(nullptr);

@@ -22,6 +22,11 @@ struct DwellSpec {
 
 enum class ClimbProfileKind { ramps, speed_table };
 
+/// What climbers' speeds and accelerations are measured over (key climber_speeds): the
+/// ribbon at rest, stretched (what the wheels see), or the unstretched ribbon (the material
+/// coordinate, the old convention).
+enum class ClimberSpeedReference { stretched_ribbon, unstretched_ribbon };
+
 struct ClimberSpec {
   std::string name;
   std::string key;        // climbers[i] or schedules[i], for messages

@@ -95,9 +95,10 @@ std::vector<const KeySpec*> KeyReference::children(const std::string& pattern) c
   return out;
 }
 
-std::string KeyReference::describe() const {
+std::string KeyReference::describe(const std::string& prefix) const {
   std::ostringstream os;
   for (const auto& k : keys_) {
+    if (k.path.compare(0, prefix.size(), prefix) != 0) continue;
     os << k.path << "  (" << to_string(k.type);
     if (!k.dimension.empty()) os << ", " << UnitTable::builtin().si_unit(k.dimension);
     if (k.required) os << ", required";

@@ -39,7 +39,8 @@ class KeyReference {
   std::vector<const KeySpec*> children(const std::string& pattern) const;
   const std::vector<KeySpec>& all() const { return keys_; }
   /// Human-readable listing: path, type, unit, default, meaning.
-  std::string describe() const;
+  /// The reference text; with a prefix, only the keys whose path starts with it.
+  std::string describe(const std::string& prefix = "") const;
 
  private:
   std::vector<KeySpec> keys_;

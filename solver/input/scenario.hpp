@@ -110,6 +110,7 @@ struct Scenario {
   OutputSpec output;
   EnvironmentSpec environment;  // air, wind, tides, cuts, strikes (environment_reader.hpp)
   std::vector<ClimberSpec> climbers;     // climbers[] and every departure of schedules[]
+  ClimberSpeedReference climber_speeds = ClimberSpeedReference::stretched_ribbon;
   std::vector<LoadCaseSpec> load_cases;  // the load-case table of `hawser design`
   int built_under = -1;                  // load case the tether is built under; -1: unloaded
   double min_base_margin = 0.0;          // warn below this base-tension margin [-]

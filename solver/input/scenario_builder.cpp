@@ -107,6 +107,9 @@ void build_initial_and_output(const ScenarioValues& v, double length_m, int elem
   }
   s.environment = read_environment(v, s, length_m, problems);  // environment.*, events.*
   s.climbers = read_climbers(v, length_m, s.environment.any_air(), problems);
+  s.climber_speeds = v.text("climber_speeds") == "over_unstretched_ribbon"
+                         ? ClimberSpeedReference::unstretched_ribbon
+                         : ClimberSpeedReference::stretched_ribbon;
 }
 
 /// load_cases[] and load_case_checks (planet tether; `length_m` is the tether's).

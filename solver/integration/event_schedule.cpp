@@ -36,6 +36,12 @@ double EventSchedule::next_time() const {
   return next_ < times_.size() ? times_[next_] : std::numeric_limits<double>::infinity();
 }
 
+bool EventSchedule::change_due() const {
+  for (const auto& c : changes_)
+    if (c->time_s() == next_time()) return true;
+  return false;
+}
+
 void EventSchedule::apply_due(double t_s, const StateLayout& layout, std::vector<double>& y) {
   for (const auto& c : changes_)
     if (c->time_s() == next_time()) c->apply(layout, y);

@@ -48,6 +48,8 @@ class EventSchedule {
 
   /// The next stop time not yet passed (+infinity when none is left).
   double next_time() const;
+  /// True when a change of the state (a strike) is due at next_time().
+  bool change_due() const;
   /// At a stop time `t_s` reached by the integrator: applies the changes due then and passes
   /// every stop time <= t_s.
   void apply_due(double t_s, const StateLayout& layout, std::vector<double>& y);

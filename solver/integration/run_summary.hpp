@@ -4,6 +4,7 @@
 #include <string>
 #include <vector>
 
+#include "solver/integration/energy_budget.hpp"
 #include "solver/integration/run_status.hpp"
 #include "solver/integration/time_integrator.hpp"
 
@@ -36,6 +37,7 @@ struct RunSummary {
   long failure_node = -1;            // where the integrator's local error was largest (-1: n/a)
   std::size_t max_slack_elements = 0;
   double first_slack_time_s = -1.0;   // -1: never slack
+  EnergyBalance energy;              // the energy budget over the outputs
 };
 
 }  // namespace hawser

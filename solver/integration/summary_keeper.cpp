@@ -38,6 +38,7 @@ void SummaryKeeper::observe(double t, const Matrix3X& x, const TetherDiagnostics
   }
   if (d.slack_elements > 0 && s_.first_slack_time_s < 0.0) s_.first_slack_time_s = t;
   s_.max_slack_elements = std::max(s_.max_slack_elements, d.slack_elements);
+  s_.energy.observe(t, d);
 }
 
 }  // namespace hawser

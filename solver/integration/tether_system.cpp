@@ -2,13 +2,15 @@
 
 #include <Eigen/LU>
 #include <algorithm>
+#include <cmath>
 
 namespace hawser {
 
 TetherSystem::TetherSystem(const TetherModel& model)
     : model_(model),
       forces_(model.forces()),
-      layout_(1, model.far_end ? model.nodes() - 2 : model.nodes() - 1),
+      channels_(work_channels(model)),
+      layout_(1, model.far_end ? model.nodes() - 2 : model.nodes() - 1, channels_.size()),
       diag_(model.mesh.node_mass),
       inverse_mass_(model.mesh.node_mass.cwiseInverse()),
       off_(Eigen::VectorXd::Zero(model.nodes())),
@@ -21,6 +23,52 @@ TetherSystem::TetherSystem(const TetherModel& model)
       blocks_(model.nodes()),
       work_(model.nodes()) {
   for (double a : model.mesh.element_area) capacity_.push_back(a * model.ultimate_strength_pa);
+  for (const ForceModel* m : forces_) {
+    const std::vector<std::string> names = m->work_channels();
+    if (names.empty()) continue;
+    WorkModel w{m, {}, Matrix3X::Zero(3, model.nodes()), std::vector<double>(names.size(), 0.0)};
+    for (const std::string& name : names)
+      w.channel.push_back(static_cast<std::size_t>(
+          std::find(channels_.begin(), channels_.end(), name) - channels_.begin()));
+    work_models_.push_back(std::move(w));
+  }
+}
+
+std::vector<std::string> TetherSystem::work_channels(const TetherModel& model) {
+  std::vector<std::string> out;
+  auto add = [&](const std::string& name) {
+    if (std::find(out.begin(), out.end(), name) == out.end()) out.push_back(name);
+  };
+  for (const ForceModel* m : model.forces())
+    for (const std::string& name : m->work_channels()) add(name);
+  if (!model.jumps.empty()) add("strikes");
+  for (std::size_t e = 0; e < model.elements(); ++e)
+    if (std::isfinite(model.bars->cut_time(e))) {
+      add("cuts");
+      break;
+    }
+  if (model.climbers) add("climber_events");
+  return out;
+}
+
+void TetherSystem::add_event_work(double t, double* y, double strike_kinetic_j, bool energy_jumps) const {
+  const auto slot = [&](const char* name) {
+    return static_cast<std::size_t>(std::find(channels_.begin(), channels_.end(), name) - channels_.begin());
+  };
+  const std::size_t strikes = slot("strikes"), climbers = slot("climber_events"), cuts = slot("cuts");
+  if (strikes < channels_.size()) y[layout_.work(strikes)] += strike_kinetic_j;
+  if (!energy_jumps || (climbers == channels_.size() && cuts == channels_.size())) return;
+  Matrix3X x, v;
+  node_state(t, y, x, v);
+  if (climbers < channels_.size())
+    y[layout_.work(climbers)] += model_.climbers->event_energy_jump({t, x, v, model_.mesh.node_mass});
+  if (cuts < channels_.size()) {
+    // The strain energy of elements cut at t, gone with them: measured across the instant,
+    // as the climbers' jump (ClimberLoad::kEventWindow_s either side).
+    const double dt = ClimberLoad::kEventWindow_s;
+    const TetherState after{t + dt, x, v, model_.mesh.node_mass}, before{t - dt, x, v, model_.mesh.node_mass};
+    y[layout_.work(cuts)] += model_.bars->energy(after) - model_.bars->energy(before);
+  }
 }
 
 void TetherSystem::node_state(double t, const double* y, Matrix3X& x, Matrix3X& v) const {
@@ -55,7 +103,18 @@ void TetherSystem::rhs(double t, const double* y, double* ydot) {
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   f_.setZero();
   double dissipation = 0.0;
-  for (const ForceModel* m : forces_) dissipation += m->add_forces_and_dissipation(s, f_);
+  // Models whose work is booked put their forces apart first, for their power below.
+  std::size_t next_work = 0;
+  for (const ForceModel* m : forces_) {
+    if (next_work < work_models_.size() && work_models_[next_work].model == m) {
+      WorkModel& w = work_models_[next_work++];
+      w.f.setZero();
+      dissipation += m->add_forces_and_dissipation(s, w.f);
+      f_ += w.f;
+    } else {
+      dissipation += m->add_forces_and_dissipation(s, f_);
+    }
+  }
   assemble_mass(t);
   solve_mass(f_);  // f_ now holds the accelerations
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
@@ -68,11 +127,11 @@ void TetherSystem::rhs(double t, const double* y, double* ydot) {
       dk[3 + a] = ap[3 * i + a];
     }
   }
-  if (model_.climbers) {
-    const TetherState with_a{t, x_, v_, model_.mesh.node_mass, &f_};
-    ydot[layout_.drive_work()] = model_.climbers->drive_power(with_a);
-  } else {
-    ydot[layout_.drive_work()] = 0.0;
+  for (std::size_t c = 0; c < channels_.size(); ++c) ydot[layout_.work(c)] = 0.0;
+  const TetherState with_a{t, x_, v_, model_.mesh.node_mass, &f_};
+  for (WorkModel& w : work_models_) {
+    w.model->work_power(with_a, w.f, w.power_w.data());
+    for (std::size_t c = 0; c < w.channel.size(); ++c) ydot[layout_.work(w.channel[c])] += w.power_w[c];
   }
   ydot[layout_.dissipated_energy()] = dissipation;
   // Torque about z of the anchor's pull on node 1, -T0 n0 applied at x_1 (equal to its
@@ -136,7 +195,10 @@ TetherDiagnostics TetherSystem::diagnose(double t, const double* y) const {
   }
   d.dissipated_j = y[layout_.dissipated_energy()];
   d.anchor_angular_impulse = y[layout_.anchor_angular_impulse()];
-  d.drive_work_j = y[layout_.drive_work()];
+  for (std::size_t c = 0; c < channels_.size(); ++c) {
+    d.work_j.push_back(y[layout_.work(c)]);
+    if (channels_[c] == "climber_drives") d.drive_work_j = d.work_j.back();
+  }
   if (model_.climbers) {
     d.climber_j = model_.climbers->climber_energy(s);
     d.angular_momentum_z += model_.climbers->climber_angular_momentum(s, w);

@@ -21,6 +21,7 @@ struct TetherDiagnostics {
   double anchor_angular_impulse = 0;    // integral of the anchor's torque on the tether [N m s]
   double climber_j = 0;                 // climbers' kinetic + potential energy [J]
   double drive_work_j = 0;              // work done by the climbers' drives since t = 0 [J]
+  std::vector<double> work_j;           // per work channel (TetherSystem::work_channels) [J]
   double max_stress_ratio = 0;          // max over elements of stress / ultimate strength
   std::size_t max_stress_element = 0;
   std::size_t slack_elements = 0;
@@ -51,6 +52,17 @@ class TetherSystem : public OdeSystem {
   void newton_factor(double gamma) override;
   void newton_solve(const double* b, double* x) const override;
 
+  /// The energy budget's channels of a model, in the state's order: those its force models
+  /// name (ForceModel::work_channels), then "strikes" (kinetic energy of the velocity jumps)
+  /// "climber_events" (ClimberLoad::event_energy_jump: climbers arriving, leaving, and
+  /// crossing nodes) and "cuts" (the strain energy of cut elements, gone with them) when the
+  /// model has them; the run driver books those at their instants (add_event_work).
+  static std::vector<std::string> work_channels(const TetherModel& model);
+  const std::vector<std::string>& work_channels() const { return channels_; }
+  /// Adds the energy that jumps at an event at time t to the channels that book it: a
+  /// strike's change of kinetic energy `strike_kinetic_j` (the caller measures it across the
+  /// jump) and, with `energy_jumps`, the jumps of stored energy at t (climbers, cuts).
+  void add_event_work(double t, double* y, double strike_kinetic_j, bool energy_jumps) const;
   const StateLayout& layout() const { return layout_; }
   const TetherModel& model() const { return model_; }
   /// Positions and velocities of all nodes at (t, y) [m, m/s].
@@ -60,7 +72,17 @@ class TetherSystem : public OdeSystem {
  private:
   const TetherModel& model_;
   std::vector<const ForceModel*> forces_;  // model_.forces(), gathered once
+  std::vector<std::string> channels_;      // work channels, in the state's order
   StateLayout layout_;
+  /// Per force model naming work channels: where its channels go in the state, and its own
+  /// forces (kept to the end of rhs(), where the accelerations are known for its power).
+  struct WorkModel {
+    const ForceModel* model;
+    std::vector<std::size_t> channel;
+    Matrix3X f;
+    std::vector<double> power_w;
+  };
+  std::vector<WorkModel> work_models_;
   /// The mass matrix per axis (the same for x, y, z): lumped node masses plus each climber's
   /// m w w^T, so tridiagonal: diag_[k], off_[k] between k and k+1. Rebuilt for time t.
   void assemble_mass(double t);

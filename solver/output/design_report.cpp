@@ -1,5 +1,7 @@
 #include "solver/output/design_report.hpp"
 
+#include <boost/math/quadrature/gauss_kronrod.hpp>
+
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -62,15 +64,50 @@ DesignFigures evaluate_design(const TetherDesign& d, int n_profile) {
   f.min_safety_factor = d.material().ultimate_strength_pa / f.peak_stress_pa;
   f.taper_ratio = d.area(std::min(std::max(rg, R), top)) / f.base_area_m2;
   f.lateral_speed_base_m_s = f.profile.front().lateral_speed_m_s;
+  const double rmax = R + f.max_area_altitude_m;
+  f.base_width_m = d.width(R);
+  f.base_thickness_m = d.thickness(R);
+  f.max_width_m = d.width(rmax);
+  f.max_thickness_m = d.thickness(rmax);
+  f.top_width_m = d.width(top);
+  f.top_thickness_m = d.thickness(top);
+  const Planet& p = d.field().planet();
+  f.breaking_length_m = d.material().ultimate_strength_pa /
+                        (rho * p.gm_m3_s2 / (p.equatorial_radius_m * p.equatorial_radius_m));
+  const double e_mod = d.material().youngs_modulus_pa;
+  const auto stretch = [&](double r) {
+    const double eps = d.stress(r) / e_mod;
+    return eps / (1.0 + eps);
+  };
+  f.elastic_stretch_m = boost::math::quadrature::gauss_kronrod<double, 31>::integrate(stretch, R, top, 15, 1e-10);
+  if (f.taper_ratio > kBuildableTaperRatio) {
+    char buf[400];
+    std::snprintf(buf, sizeof buf,
+                  "taper ratio %.3g is above %.0f: the widest section would be %.3g times the base; "
+                  "this design is not buildable (a stronger or lighter material, or a lower safety factor)",
+                  f.taper_ratio, kBuildableTaperRatio, f.taper_ratio);
+    f.warnings.push_back(buf);
+  }
   return f;
 }
 
 namespace {
-std::string line(const char* label, double value, const char* unit, const char* fmt = "%.6g") {
-  char buf[256];
+/// Every figure with the same five significant figures: plain digits between 1e-4 and 1e9,
+/// powers of ten outside.
+std::string sig5(double v) {
   char val[64];
-  std::snprintf(val, sizeof val, fmt, value);
-  std::snprintf(buf, sizeof buf, "  %-44s %16s %s\n", label, val, unit);
+  const double a = std::abs(v);
+  if (a == 0.0 || (a >= 1e-4 && a < 1e9)) {
+    const int magnitude = a == 0.0 ? 0 : static_cast<int>(std::floor(std::log10(a)));
+    std::snprintf(val, sizeof val, "%.*f", std::max(0, 4 - magnitude), v);
+  } else {
+    std::snprintf(val, sizeof val, "%.4e", v);
+  }
+  return val;
+}
+std::string line(const char* label, double value, const char* unit) {
+  char buf[256];
+  std::snprintf(buf, sizeof buf, "  %-44s %16s %s\n", label, sig5(value).c_str(), unit);
   return buf;
 }
 }  // namespace
@@ -84,29 +121,38 @@ std::string design_table(const Scenario& sc, const TetherDesign& d, const Design
   os << "  profile " << (d.spec().profile == TaperProfile::uniform ? "uniform section" : "constant stress (Pearson taper)")
      << ", safety factor " << d.spec().safety_factor << ", counterweight "
      << (d.counterweight_computed() ? "computed" : "given") << "\n\n";
-  os << line("synchronous (geostationary) altitude", f.synchronous_altitude_m / 1e3, "km", "%.3f");
-  os << line("tether length (anchor to top)", f.tether_length_m / 1e3, "km", "%.3f");
-  os << line("design stress", f.design_stress_pa / 1e9, "GPa", "%.4f");
-  os << line("base area", f.base_area_m2 * 1e6, "mm^2", "%.6g");
-  os << line("largest area", f.max_area_m2 * 1e6, "mm^2", "%.6g");
-  os << line("  at altitude", f.max_area_altitude_m / 1e3, "km", "%.3f");
-  os << line("top area", f.top_area_m2 * 1e6, "mm^2", "%.6g");
-  os << line("taper ratio A(r_g)/A(base)", f.taper_ratio, "", "%.6g");
-  os << line("tether mass", f.tether_mass_kg / 1e3, "t", "%.6g");
-  os << line("counterweight mass", f.counterweight_mass_kg / 1e3, "t", "%.6g");
-  os << line("total mass", f.total_mass_kg / 1e3, "t", "%.6g");
-  os << line("base tension", f.base_tension_n / 1e3, "kN", "%.6g");
-  os << line("top tension", f.top_tension_n / 1e3, "kN", "%.6g");
-  os << line("peak tension", f.peak_tension_n / 1e3, "kN", "%.6g");
-  os << line("  at altitude", f.peak_tension_altitude_m / 1e3, "km", "%.3f");
-  os << line("peak stress", f.peak_stress_pa / 1e9, "GPa", "%.4f");
-  os << line("smallest safety factor", f.min_safety_factor, "", "%.4f");
-  os << line("longitudinal wave speed sqrt(E/rho)", f.longitudinal_speed_m_s / 1e3, "km/s", "%.4f");
-  os << line("  one-way travel time", f.longitudinal_travel_time_s / 3600, "h", "%.4f");
-  os << line("lateral wave speed sqrt(sigma/rho) at base", f.lateral_speed_base_m_s / 1e3, "km/s", "%.4f");
-  os << line("  smallest along the tether", f.lateral_speed_min_m_s / 1e3, "km/s", "%.4f");
-  os << line("  one-way travel time", f.lateral_travel_time_s / 3600, "h", "%.4f");
-  os << line("stress a uniform cable would need at r_g", f.uniform_cable_stress_pa / 1e9, "GPa", "%.4f");
+  os << line("synchronous (geostationary) altitude", f.synchronous_altitude_m / 1e3, "km");
+  os << line("tether length (anchor to top)", f.tether_length_m / 1e3, "km");
+  os << line("design stress", f.design_stress_pa / 1e9, "GPa");
+  os << line("base area", f.base_area_m2 * 1e6, "mm^2");
+  os << line("largest area", f.max_area_m2 * 1e6, "mm^2");
+  os << line("  at altitude", f.max_area_altitude_m / 1e3, "km");
+  os << line("top area", f.top_area_m2 * 1e6, "mm^2");
+  const bool round = d.spec().shape == SectionShape::round;
+  os << line(round ? "base diameter" : "base width", f.base_width_m * 1e3, "mm");
+  if (!round) os << line("base thickness", f.base_thickness_m * 1e6, "um");
+  os << line(round ? "largest diameter" : "largest width", f.max_width_m * 1e3, "mm");
+  if (!round) os << line("largest thickness", f.max_thickness_m * 1e6, "um");
+  os << line(round ? "top diameter" : "top width", f.top_width_m * 1e3, "mm");
+  if (!round) os << line("top thickness", f.top_thickness_m * 1e6, "um");
+  os << line("taper ratio A(r_g)/A(base)", f.taper_ratio, "");
+  os << line("tether mass", f.tether_mass_kg / 1e3, "t");
+  os << line("counterweight mass", f.counterweight_mass_kg / 1e3, "t");
+  os << line("total mass", f.total_mass_kg / 1e3, "t");
+  os << line("base tension", f.base_tension_n / 1e3, "kN");
+  os << line("top tension", f.top_tension_n / 1e3, "kN");
+  os << line("peak tension", f.peak_tension_n / 1e3, "kN");
+  os << line("  at altitude", f.peak_tension_altitude_m / 1e3, "km");
+  os << line("peak stress", f.peak_stress_pa / 1e9, "GPa");
+  os << line("smallest safety factor", f.min_safety_factor, "");
+  os << line("longitudinal wave speed sqrt(E/rho)", f.longitudinal_speed_m_s / 1e3, "km/s");
+  os << line("  one-way travel time", f.longitudinal_travel_time_s / 3600, "h");
+  os << line("lateral wave speed sqrt(sigma/rho) at base", f.lateral_speed_base_m_s / 1e3, "km/s");
+  os << line("  smallest along the tether", f.lateral_speed_min_m_s / 1e3, "km/s");
+  os << line("  one-way travel time", f.lateral_travel_time_s / 3600, "h");
+  os << line("stress a uniform cable would need at r_g", f.uniform_cable_stress_pa / 1e9, "GPa");
+  os << line("breaking length sigma_u/(rho g0)", f.breaking_length_m / 1e3, "km");
+  os << line("total elastic stretch at rest", f.elastic_stretch_m / 1e3, "km");
   os << "\n  " << "altitude [km]      area [mm^2]    tension [kN]   stress [GPa]  safety factor\n";
   // About fifteen rows: every k-th sample plus the synchronous radius.
   const std::size_t step = std::max<std::size_t>(1, f.profile.size() / 14);
@@ -115,10 +161,12 @@ std::string design_table(const Scenario& sc, const TetherDesign& d, const Design
     const bool at_sync = std::abs(s.altitude_m - f.synchronous_altitude_m) < 1e-6 * f.tether_length_m;
     if (i % step != 0 && i + 1 != f.profile.size() && !at_sync) continue;
     char buf[200];
-    std::snprintf(buf, sizeof buf, "  %13.3f %16.6g %15.6g %14.4f %14.4f%s\n", s.altitude_m / 1e3, s.area_m2 * 1e6,
-                  s.tension_n / 1e3, s.stress_pa / 1e9, s.safety_factor, at_sync ? "   <- synchronous" : "");
+    std::snprintf(buf, sizeof buf, "  %13s %16s %15s %14s %14s%s\n", sig5(s.altitude_m / 1e3).c_str(),
+                  sig5(s.area_m2 * 1e6).c_str(), sig5(s.tension_n / 1e3).c_str(), sig5(s.stress_pa / 1e9).c_str(),
+                  sig5(s.safety_factor).c_str(), at_sync ? "   <- synchronous" : "");
     os << buf;
   }
+  for (const std::string& w : f.warnings) os << "\n  WARNING: " << w << "\n";
   os << "\n  hawser is a research tool, not a certification method: real structures answer to licensed\n"
         "  engineering practice and the applicable standards.\n";
   return os.str();
@@ -171,7 +219,17 @@ nlohmann::json design_json(const Scenario& sc, const TetherDesign& d, const Desi
                  {"lateral_wave_speed_base_m_per_s", f.lateral_speed_base_m_s},
                  {"lateral_wave_speed_min_m_per_s", f.lateral_speed_min_m_s},
                  {"lateral_travel_time_s", f.lateral_travel_time_s},
-                 {"uniform_cable_stress_pa", f.uniform_cable_stress_pa}};
+                 {"uniform_cable_stress_pa", f.uniform_cable_stress_pa},
+                 {"base_width_m", f.base_width_m},
+                 {"base_thickness_m", f.base_thickness_m},
+                 {"max_width_m", f.max_width_m},
+                 {"max_thickness_m", f.max_thickness_m},
+                 {"top_width_m", f.top_width_m},
+                 {"top_thickness_m", f.top_thickness_m},
+                 {"breaking_length_m", f.breaking_length_m},
+                 {"elastic_stretch_m", f.elastic_stretch_m},
+                 {"buildable_taper_ratio_limit", kBuildableTaperRatio}};
+  j["warnings"] = f.warnings;
   json prof;
   for (const auto& s : f.profile) {
     prof["altitude_m"].push_back(s.altitude_m);

@@ -37,6 +37,20 @@ const SummaryReal kSummaryReals[] = {
     {"peak_north_south_time_s", &RunSummary::peak_north_south_time_s},
     {"first_slack_time_s", &RunSummary::first_slack_time_s},
 };
+// The energy balance's running values, kept in the checkpoint (started: outputs > 0).
+struct EnergyReal {
+  const char* name;
+  double EnergyBalance::*field;
+};
+const EnergyReal kEnergyReals[] = {
+    {"energy_start_kinetic_j", &EnergyBalance::start_kinetic_j},
+    {"energy_start_potential_j", &EnergyBalance::start_potential_j},
+    {"energy_start_strain_j", &EnergyBalance::start_strain_j},
+    {"energy_start_climbers_j", &EnergyBalance::start_climbers_j},
+    {"energy_residual_j", &EnergyBalance::residual_j},
+    {"energy_residual_time_s", &EnergyBalance::residual_time_s},
+    {"energy_exchanged_j", &EnergyBalance::exchanged_j},
+};
 const SummaryCount kSummaryCounts[] = {
     {"outputs", &RunSummary::outputs},
     {"peak_tension_element", &RunSummary::peak_tension_element},
@@ -63,6 +77,23 @@ H5Writer open_writer(const std::string& path, const Scenario& sc, const ResumePo
 
 }  // namespace
 
+/// What each work channel of TetherSystem::work_channels books.
+static std::string work_meaning(const std::string& channel) {
+  if (channel == "drag") return "work of the air's drag on the ribbon and the climbers since t = 0";
+  if (channel == "tides") return "work of the third bodies' tidal forces since t = 0";
+  if (channel == "climber_drives")
+    return "work of the climbers' drives on their motion along the ribbon since t = 0";
+  if (channel == "strikes") return "kinetic energy given by the strikes (velocity jumps)";
+  if (channel == "cuts")
+    return "strain energy of the elements at the instants they are cut, gone with them (-)";
+  if (channel == "climber_events")
+    return "jumps of the climbers' energy at their instants: climbers arriving on the ribbon (+), "
+           "leaving it or dropping a payload (-), and the kink at each node crossing, where a "
+           "climber's velocity jumps with the ribbon's direction and stretch (no impulse is "
+           "modelled there)";
+  return "work of the force model's '" + channel + "' channel since t = 0";
+}
+
 ResumePoint read_resume_point(const std::string& path) {
   const auto refuse = [&path](const std::string& why) {
     return InputError("error: " + path + ": cannot resume: " + why + "\n");
@@ -87,6 +118,8 @@ ResumePoint read_resume_point(const std::string& path) {
   for (const SummaryReal& f : kSummaryReals) c.summary.*f.field = file->attribute_double(g, f.name);
   for (const SummaryCount& f : kSummaryCounts)
     c.summary.*f.field = static_cast<std::size_t>(file->attribute_integer(g, f.name));
+  for (const EnergyReal& f : kEnergyReals) c.summary.energy.*f.field = file->attribute_double(g, f.name);
+  c.summary.energy.started = c.summary.outputs > 0;
   const std::vector<double> rt = file->doubles(g + "/rupture_time");
   const std::vector<long long> re = file->integers(g + "/rupture_element");
   const std::vector<double> rs = file->doubles(g + "/rupture_stress");
@@ -113,6 +146,9 @@ ResultRecorder::ResultRecorder(const std::string& path, const Scenario& sc, cons
   strain_ = series("/energy/strain", {});
   dissipated_ = series("/energy/dissipated", {});
   angular_momentum_ = series("/energy/angular_momentum_z", {});
+  if (model.climbers) climbers_energy_ = series("/energy/climbers", {});
+  for (const std::string& channel : TetherSystem::work_channels(model))
+    work_.push_back(series("/energy/work/" + channel, {}));
   anchor_force_ = series("/anchor/force", {3});
   angular_impulse_ = series("/anchor/angular_impulse_z", {});
   // Time histories the force models offer (wind, drag, tides, climbers, ...).
@@ -202,6 +238,14 @@ void ResultRecorder::write_fixed(const Scenario& sc, const TetherModel& model) {
                       "rotating-frame kinetic energy, potential of gravity and centrifugal force, strain energy "
                       "of taut elements, energy dissipated by damping since t = 0; angular momentum of the free "
                       "nodes about the spin axis in the inertial frame");
+  if (model.climbers)
+    file_.set_attribute("/energy/climbers", "meaning",
+                        "kinetic (rotating frame) plus potential energy of the climbers on the tether");
+  file_.set_attribute("/energy", "content",
+                      "kinetic + potential + strain + climbers - (their values at the first output) "
+                      "= sum of /energy/work/* - dissipated; /summary energy_residual_j is what is left");
+  for (const std::string& channel : TetherSystem::work_channels(model))
+    file_.set_attribute("/energy/work/" + channel, "meaning", work_meaning(channel));
   file_.set_attribute("/anchor", "meaning",
                       "force: the pull of the tether on the anchor (element 0's tension along it); "
                       "angular_impulse_z: time integral of the anchor's torque on the tether about the spin axis");
@@ -316,6 +360,8 @@ void ResultRecorder::record(double t, const Matrix3X& x, const Matrix3X& v, cons
   file_.append(strain_, &d.strain_j, 1);
   file_.append(dissipated_, &d.dissipated_j, 1);
   file_.append(angular_momentum_, &d.angular_momentum_z, 1);
+  if (model_.climbers) file_.append(climbers_energy_, &d.climber_j, 1);
+  for (std::size_t c = 0; c < work_.size(); ++c) file_.append(work_[c], &d.work_j[c], 1);
   file_.append(anchor_force_, d.anchor_force_n.data(), 1);
   file_.append(angular_impulse_, &d.anchor_angular_impulse, 1);
   if (model_series_.empty()) return;
@@ -351,6 +397,7 @@ void ResultRecorder::checkpoint(const RunCheckpoint& c) {
   for (const SummaryReal& f : kSummaryReals) value(sg, f.name, c.summary.*f.field);
   for (const SummaryCount& f : kSummaryCounts)
     value(sg, f.name, static_cast<long long>(c.summary.*f.field));
+  for (const EnergyReal& f : kEnergyReals) value(sg, f.name, c.summary.energy.*f.field);
   std::vector<double> rt, rs;
   std::vector<long long> re;
   for (const RuptureEvent& r : c.summary.ruptures) {
@@ -412,6 +459,13 @@ void ResultRecorder::finish(const RunSummary& s) {
   value(g, "max_slack_elements", static_cast<ll>(s.max_slack_elements));
   value(g, "first_slack_time_s", s.first_slack_time_s);
   value(g, "ruptures", static_cast<ll>(s.ruptures.size()));
+  value(g, "energy_residual_j", s.energy.residual_j);
+  value(g, "energy_residual_time_s", s.energy.residual_time_s);
+  value(g, "energy_exchanged_j", s.energy.exchanged_j);
+  value(g, "energy_residual_fraction", s.energy.residual_fraction());
+  value(g, "energy_residual_limit", kEnergyResidualLimit);
+  value(g, "energy_balance",
+        std::string(s.energy.above_limit() ? "residual above limit" : "closed"));
   for (const ModelSeries& ms : model_series_)
     for (std::size_t i = 0; i < ms.fields.size(); ++i)
       if (!ms.fields[i].summary_peak.empty()) value(g, ms.fields[i].summary_peak, ms.peaks[i]);

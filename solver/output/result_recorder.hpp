@@ -73,7 +73,8 @@ class ResultRecorder : public OutputSink {
   std::vector<ModelSeries> model_series_;
   std::vector<std::vector<double>> rows_;
   H5Writer::SeriesId time_, position_, velocity_, tension_, kinetic_, potential_, strain_, dissipated_,
-      anchor_force_, angular_momentum_, angular_impulse_;
+      anchor_force_, angular_momentum_, angular_impulse_, climbers_energy_;
+  std::vector<H5Writer::SeriesId> work_;  // /energy/work/<channel>, TetherSystem's order
   std::vector<double> row_;
   std::vector<double> times_;  // every output time, for the .xmf
   double scenario_safety_factor_ = 0.0;  // the design's, for /summary (0: none)

@@ -66,7 +66,8 @@ climbers:
 """
 MASSES = {"wren": 2000.0, "petrel": 3000.0}
 # The validation stage flies every profile on the tether at rest, where altitudes are measured
-# (solver/input/climber_reader.hpp), before anything is built: the leg from 100 to 600 km is
+# (solver/input/climber_reader.hpp), before anything is built, and the speeds are over that
+# stretched ribbon (config/scenario_keys.yaml, climber_speeds): the leg from 100 to 600 km is
 # 500 km there. Ramps a = 0.01, d = 0.5 m/s^2 reach at most sqrt(2 L a d / (a + d))
 # (kinematics): 99.02 m/s = 356.5 km/h. (0.5 % allowed.)
 REACHABLE_KM_H = math.sqrt(2 * 500e3 * 0.01 * 0.5 / 0.51) * 3.6

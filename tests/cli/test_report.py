@@ -65,7 +65,7 @@ tether:
   nodes: 20
 """
 FIGURES = ["safety_margins", "tension", "deflection_profiles", "deflection_history",
-           "deflection_map", "energy", "anchor_force", "climbers"]
+           "deflection_map", "energy", "energy_budget", "anchor_force", "climbers"]
 CAUTION_PHRASES = ["not a certification method", "real structure is safe",
                    "licensed engineering practice", "applicable standards"]
 
@@ -336,6 +336,7 @@ def test_missing_groups(tmp):
           f"first {NT} of {NT + 4} output rows" in text)
     check("partial file: caution still present", CAUTION_PHRASES[0] in text)
     check("partial file: no energy figure", not (out / "energy.png").exists())
+    check("partial file: no energy budget figure", not (out / "energy_budget.png").exists())
     ok, why = png_ok(out / "deflection_history.png")
     check("partial file: deflection figures still drawn", ok, why)
 

@@ -306,7 +306,8 @@ def check_thinning(c, h, demo_path, full):
     ]
     for extra, expect in cases:
         out = h.out("thin.h5")
-        p = h("run", demo_path, "-o", out, *SHORT, *extra)
+        # One file, replaced by each case (a run refuses an existing file without it).
+        p = h("run", demo_path, "-o", out, "--overwrite", *SHORT, *extra)
         if not c.check(p.returncode == 0, f"run with {' '.join(extra[1::2])} exits 0", p.stderr):
             continue
         with h5py.File(out, "r") as f:
@@ -330,7 +331,8 @@ def steps_per_output(h, path, extra, interval_s, count):
     after 1, 2, ... intervals (the runs are deterministic, so each is a prefix of the longer)."""
     steps, prev = [], 0
     for j in range(1, count + 1):
-        p = h("run", path, "-o", h.out("prefix.h5"), *extra, "--set", f"simulation.duration={j * interval_s} s")
+        p = h("run", path, "-o", h.out("prefix.h5"), "--overwrite", *extra,
+              "--set", f"simulation.duration={j * interval_s} s")
         if p.returncode != 0:
             return steps + [f"run to {j * interval_s} s: exit {p.returncode}"]
         with h5py.File(h.out("prefix.h5"), "r") as f:
