@@ -92,6 +92,7 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
     parked = std::make_unique<ClimberLoad>(l.parked, m.equilibrium.s0_m, point_models,
                                            m.mesh.as_built_position);
     parked->set_parked(true);
+    parked->set_spread(l.spread, l.spread_width);
     if (l.mean_wind)
       if (auto air = std::dynamic_pointer_cast<const AerodynamicDrag>(m.mean_drag))
         parked->set_air(air);
@@ -104,6 +105,7 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
     built_under = std::make_unique<ClimberLoad>(m.built_under, m.equilibrium.s0_m, untided,
                                                 m.mesh.as_built_position);
     built_under->set_parked(true);
+    built_under->set_spread(l.spread, l.spread_width);
     set.removed.push_back(built_under.get());
   }
   if (tide) set.added.push_back(tide.get());

@@ -119,6 +119,8 @@ TetherModel build_model(const Scenario& sc) {
   loads.counterweight_kg = m.mesh.counterweight_mass;
   loads.mean_wind = m.mean_drag != nullptr;
   loads.tides = sc.environment.tides.in_static_state;
+  loads.spread = sc.mesh.climber_load_smooth ? LoadSpread::smooth : LoadSpread::point;
+  loads.spread_width = sc.mesh.climber_load_width;
   const LoadedState st = solve_static_loads(m, loads);
   if (st.loaded) {
     m.mesh.position = st.state.position_m;
@@ -138,6 +140,8 @@ TetherModel build_model(const Scenario& sc) {
     m.climbers = std::make_unique<ClimberLoad>(loads.parked, m.equilibrium.s0_m, point_models,
                                                m.mesh.as_built_position);
     m.climbers->set_bars(m.bars.get());
+    m.climbers->set_spread(sc.mesh.climber_load_smooth ? LoadSpread::smooth : LoadSpread::point,
+                           sc.mesh.climber_load_width);
     for (const auto& b : m.body)
       if (auto air = std::dynamic_pointer_cast<const AerodynamicDrag>(b)) m.climbers->set_air(air);
   }

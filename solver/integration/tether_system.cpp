@@ -246,15 +246,64 @@ void TetherSystem::assemble_mass(double t) {
     off_[k] = 0.0;
   }
   touched_.clear();
+  attached_.clear();
+  wide_ = false;
   if (!model_.climbers) return;
-  for (const Attachment& at : model_.climbers->attachments(t)) {
-    const std::size_t e = at.element;
-    const double w0 = 1.0 - at.xi, w1 = at.xi;
-    diag_[e] += at.mass_kg * w0 * w0;
-    diag_[e + 1] += at.mass_kg * w1 * w1;
-    off_[e] += at.mass_kg * w0 * w1;
-    touched_.push_back(e);
-    touched_.push_back(e + 1);
+  attached_ = model_.climbers->attachments(t);
+  for (const Attachment& at : attached_) {
+    const SpreadWeights& sw = at.spread;
+    wide_ = wide_ || sw.count > 2;
+    for (std::size_t i = 0; i < sw.count; ++i) {
+      const std::size_t k = sw.first + i;
+      touched_.push_back(k);
+      for (std::size_t j = 0; j < sw.count; ++j) {
+        const double mij = at.mass_kg * sw.w[i] * sw.w[j];
+        if (j == i + 1)
+          off_[k] += mij;
+        else if (j + 1 != i)
+          diag_[k] += mij;  // the diagonal, and (a wide spread) couplings beyond the band, lumped
+      }
+    }
+  }
+}
+
+void TetherSystem::solve_mass_wide(Matrix3X& f) const {
+  // M = D + W diag(m) W^T (D the lumped masses, column c of W climber c's weights on the
+  // free nodes): by the Woodbury identity (Golub and Van Loan, Matrix Computations, 4th ed.,
+  // section 2.1.4), with g = D^-1 f, B = W^T g and S = I + diag(m) W^T D^-1 W,
+  //   M^-1 f = g - D^-1 W Y,   S Y = diag(m) B;
+  // S is climbers x climbers, so the solve costs O(N + climbers^3).
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  const std::size_t nc = attached_.size();
+  for (std::size_t k = first; k <= last; ++k) f.col(k) *= inverse_mass_[k];
+  Eigen::MatrixXd S = Eigen::MatrixXd::Identity(nc, nc), B = Eigen::MatrixXd::Zero(nc, 3);
+  auto free_weight = [&](const Attachment& at, std::size_t i) {
+    const std::size_t k = at.spread.first + i;
+    return (k < first || k > last) ? 0.0 : at.spread.w[i];
+  };
+  for (std::size_t c = 0; c < nc; ++c) {
+    const Attachment& ac = attached_[c];
+    for (std::size_t i = 0; i < ac.spread.count; ++i) {
+      const std::size_t k = ac.spread.first + i;
+      const double wc = free_weight(ac, i);
+      if (wc == 0.0) continue;
+      B.row(c) += wc * f.col(k).transpose();
+      for (std::size_t d = 0; d < nc; ++d) {
+        const Attachment& ad = attached_[d];
+        if (k < ad.spread.first || k >= ad.spread.first + ad.spread.count) continue;
+        S(c, d) += ac.mass_kg * wc * free_weight(ad, k - ad.spread.first) * inverse_mass_[k];
+      }
+    }
+    B.row(c) *= ac.mass_kg;
+  }
+  const Eigen::MatrixXd Y = S.partialPivLu().solve(B);
+  for (std::size_t c = 0; c < nc; ++c) {
+    const Attachment& ac = attached_[c];
+    for (std::size_t i = 0; i < ac.spread.count; ++i) {
+      const std::size_t k = ac.spread.first + i;
+      const double wc = free_weight(ac, i);
+      if (wc != 0.0) f.col(k) -= wc * inverse_mass_[k] * Y.row(c).transpose();
+    }
   }
 }
 
@@ -264,6 +313,7 @@ void TetherSystem::solve_mass(Matrix3X& f) const {
   // ones (zero for fixed points), and their mass couplings drop out of the free equations.
   for (std::size_t k = 0; k < first; ++k) f.col(k).setZero();
   for (std::size_t k = last + 1; k < static_cast<std::size_t>(f.cols()); ++k) f.col(k).setZero();
+  if (wide_) return solve_mass_wide(f);
   if (touched_.empty()) {  // lumped masses only: a = f / m
     double* fp = f.data();
     for (std::size_t k = first; k <= last; ++k)

@@ -68,6 +68,12 @@ class TetherSystem : public OdeSystem {
   /// solve per lone climber (the Sherman-Morrison formula), the tridiagonal (Thomas)
   /// algorithm on runs of nodes coupled by several climbers; a = f / m elsewhere.
   void solve_mass(Matrix3X& f_to_a) const;
+  /// The same for climbers spread over more than two nodes (a smooth spread), exactly, by
+  /// the Woodbury identity. diag_ and off_ then hold the band of M, with its couplings
+  /// beyond the band lumped onto the diagonal: the Newton matrix's approximation.
+  void solve_mass_wide(Matrix3X& f_to_a) const;
+  std::vector<Attachment> attached_;  // the climbers at the time of the last assemble_mass()
+  bool wide_ = false;                 // some climber spread over more than two nodes
   Eigen::VectorXd diag_, inverse_mass_, off_;
   std::vector<std::size_t> touched_;  // nodes whose mass entries differ from the lumped ones
   mutable Eigen::VectorXd thomas_c_;

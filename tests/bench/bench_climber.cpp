@@ -57,7 +57,8 @@ struct TransitSink : OutputSink {
   }
 };
 
-std::string scenario_text(int n, const std::string& atol_velocity, const std::string& hours) {
+std::string scenario_text(int n, const std::string& atol_velocity, const std::string& hours,
+                          const std::string& load) {
   return "name: climber transit benchmark\n"
          "planet: earth\n"
          "material: kestrel_k100\n"
@@ -66,7 +67,7 @@ std::string scenario_text(int n, const std::string& atol_velocity, const std::st
          "counterweight: {mass: computed}\n"
          "anchor: {latitude: 0 deg, longitude: -160 deg}\n"
          "mesh: {elements: " +
-         std::to_string(n) +
+         std::to_string(n) + ", climber_load: " + load +
          "}\n"
          "simulation: {duration: " +
          hours + " h, output_interval: 1 h, method: bdf, rtol: 1.0e-6, atol_position: 1.0e-3, atol_velocity: " +
@@ -81,26 +82,29 @@ std::string scenario_text(int n, const std::string& atol_velocity, const std::st
 
 int main(int argc, char** argv) {
   std::vector<int> sizes;
-  std::string atol_velocity = "1.0e-4", hours = "179";
+  std::string atol_velocity = "1.0e-4", hours = "179", load = "smooth";
   for (int i = 1; i < argc; ++i) {
     const std::string a = argv[i];
     if (a == "--atol-velocity" && i + 1 < argc) {
       atol_velocity = argv[++i];
     } else if (a == "--hours" && i + 1 < argc) {
       hours = argv[++i];
+    } else if (a == "--load" && i + 1 < argc) {
+      load = argv[++i];
     } else if (!a.empty() && a[0] != '-') {
       sizes.push_back(std::stoi(a));
     } else {
-      std::fprintf(stderr, "usage: bench_climber [N ...] [--atol-velocity V] [--hours H]\n");
+      std::fprintf(stderr, "usage: bench_climber [N ...] [--atol-velocity V] [--hours H] [--load smooth|point]\n");
       return 2;
     }
   }
   if (sizes.empty()) sizes = {250, 500, 1000};
-  std::printf("climber transit 0 -> 35786 km at 200 km/h, 20 t; %s h simulated; rtol 1e-6, atol 1e-3 m, %s m/s\n",
-              hours.c_str(), atol_velocity.c_str());
+  std::printf("climber transit 0 -> 35786 km at 200 km/h, 20 t; %s h simulated; rtol 1e-6, atol 1e-3 m, %s m/s; "
+              "climber load %s\n",
+              hours.c_str(), atol_velocity.c_str(), load.c_str());
   int failures = 0;
   for (int n : sizes) {
-    const Scenario sc = load_scenario_text(scenario_text(n, atol_velocity, hours), "bench_climber.yaml", {});
+    const Scenario sc = load_scenario_text(scenario_text(n, atol_velocity, hours, load), "bench_climber.yaml", {});
     const TetherModel model = build_model(sc);
     TetherSystem sys(model);
     const std::vector<double> y0 = initial_state(sys, sc.initial);
