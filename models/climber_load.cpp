@@ -123,27 +123,39 @@ void ClimberLoad::add_forces(const TetherState& s, Matrix3X& f) const {
   }
 }
 
-void ClimberLoad::add_jacobian(const TetherState& s, NodeJacobian& j) const {
+void ClimberLoad::jacobian_blocks(const TetherState& s, std::vector<Attachment>& out,
+                                  std::vector<ClimberJacobian>& jac) const {
   const Eigen::Matrix3d I = Eigen::Matrix3d::Identity();
-  for (const Attachment& at : attachments(s.t)) {
-    const PointState p = point(s, at);
+  out = attachments(s.t);
+  jac.resize(out.size());
+  for (std::size_t a = 0; a < out.size(); ++a) {
+    const Attachment& at = out[a];
     Eigen::Matrix3d fr, fv;
-    point_force(s.t, p, at, &fr, &fv);
+    point_force(s.t, point(s, at), at, &fr, &fv);
     const double m = at.mass_kg;
-    const SpreadWeights& sw = at.spread;
-    // dG/dx_k = w_k F_r + c1_k F_v - m c2_k I and dG/dv_k = w_k F_v - 2 m c1_k I for
-    // G = F_c(r_c, v_c) - m a_rel, shared by the weights. Couplings beyond a node's
-    // neighbours (a smooth spread over more than two nodes) stay out of this banded form:
-    // the Newton matrix is then approximate there, the right-hand side exact.
-    for (std::size_t c = 0; c < sw.count; ++c) {
-      const Eigen::Matrix3d gx = sw.w[c] * fr + at.c1(c) * fv - m * at.c2(c) * I;
-      const Eigen::Matrix3d gv = sw.w[c] * fv - 2 * m * at.c1(c) * I;
+    // dG/dx_k = w_k F_r + c1_k F_v - m c2_k I and dG/dv_k = w_k F_v - 2 m c1_k I
+    // (r_c = sum w x, v_c = sum (w v + c1 x), a_rel = sum (2 c1 v + c2 x)).
+    for (std::size_t c = 0; c < at.spread.count; ++c) {
+      jac[a].gx[c] = at.spread.w[c] * fr + at.c1(c) * fv - m * at.c2(c) * I;
+      jac[a].gv[c] = at.spread.w[c] * fv - 2 * m * at.c1(c) * I;
+    }
+  }
+}
+
+void ClimberLoad::add_jacobian(const TetherState& s, NodeJacobian& j) const {
+  std::vector<Attachment> att;
+  std::vector<ClimberJacobian> jac;
+  jacobian_blocks(s, att, jac);
+  for (std::size_t a = 0; a < att.size(); ++a) {
+    const SpreadWeights& sw = att[a].spread;
+    // Couplings beyond a node's neighbours (a smooth spread over more than two nodes) stay
+    // out of this banded form; the integrator's Newton solver takes them from jacobian_blocks().
+    for (std::size_t c = 0; c < sw.count; ++c)
       for (std::size_t r = 0; r < sw.count; ++r) {
         if (r > c + 1 || c > r + 1) continue;
-        j.dx(sw.first + r, sw.first + c) += sw.w[r] * gx;
-        j.dv(sw.first + r, sw.first + c) += sw.w[r] * gv;
+        j.dx(sw.first + r, sw.first + c) += sw.w[r] * jac[a].gx[c];
+        j.dv(sw.first + r, sw.first + c) += sw.w[r] * jac[a].gv[c];
       }
-    }
   }
 }
 

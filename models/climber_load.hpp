@@ -40,6 +40,12 @@ struct Climber {
   double drag_area_m2 = 0.0; // drag coefficient times frontal area, Cd A [m^2]; 0: no drag
 };
 
+/// One climber's share of the Jacobian: it adds w_k G to node k, G = F_c(r_c, v_c) - m a_rel,
+/// so dF_k/dx_j = w_k dG/dx_j and dF_k/dv_j = w_k dG/dv_j for the nodes j of its spread.
+struct ClimberJacobian {
+  std::array<Eigen::Matrix3d, SpreadWeights::kMaxNodes> gx, gv;  // dG/dx_j [N/m], dG/dv_j [N s/m]
+};
+
 /// Where a climber is at time t, for the mass matrix and the forces.
 struct Attachment {
   std::size_t climber;
@@ -78,6 +84,9 @@ class ClimberLoad : public ForceModel {
 
   void add_forces(const TetherState& s, Matrix3X& f) const override;
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
+  /// The attachments at s.t and, for each, its dG/dx_j and dG/dv_j (the whole Jacobian, also
+  /// for a spread beyond a node's neighbours: for the integrator's Newton solver).
+  void jacobian_blocks(const TetherState& s, std::vector<Attachment>& at, std::vector<ClimberJacobian>& jac) const;
   std::vector<double> event_times() const override;
   std::vector<OutputField> output_fields(const std::vector<std::size_t>& nodes) const override;
   std::vector<OutputAttribute> output_attributes() const override;

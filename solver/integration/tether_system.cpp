@@ -163,20 +163,25 @@ void TetherSystem::newton_jacobian(double t, const double* y) {
   node_state(t, y, x_, v_);
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   newton_jac_.set_zero();
-  for (const ForceModel* m : forces_) m->add_jacobian(s, newton_jac_);
+  // The climbers' terms reach beyond the band for a smooth spread: they are kept apart, whole.
+  for (const ForceModel* m : forces_)
+    if (m != model_.climbers.get()) m->add_jacobian(s, newton_jac_);
+  newton_att_.clear();
+  newton_cj_.clear();
+  if (model_.climbers) model_.climbers->jacobian_blocks(s, newton_att_, newton_cj_);
 }
 
 void TetherSystem::newton_factor(double gamma) {
   newton_gamma_ = gamma;
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
   const double g2 = gamma * gamma;
-  assemble_mass(newton_t_);
+  const Eigen::VectorXd& mass = model_.mesh.node_mass;
   auto block = [&](std::size_t k, std::size_t j) -> Eigen::Matrix3d {
     Eigen::Matrix3d a = -gamma * newton_jac_.dv(k, j) - g2 * newton_jac_.dx(k, j);
-    const double m = k == j ? diag_[k] : off_[std::min(k, j)];
-    a.diagonal().array() += m;
+    if (k == j) a.diagonal().array() += mass[k];
     return a;
   };
+  // The tether's part T (lumped masses, every model but the climbers), block tridiagonal.
   // Block Gaussian elimination: D_first = A_ff; L_k = A_{k,k-1} D_{k-1}^-1;
   // E_{k-1} = D_{k-1}^-1 A_{k-1,k}; D_k = A_kk - A_{k,k-1} E_{k-1}.
   for (std::size_t k = first; k <= last; ++k) {
@@ -197,6 +202,57 @@ void TetherSystem::newton_factor(double gamma) {
     nb.d_inv = d.inverse();
   }
   blocks_[last].e_next.setZero();
+  // The climbers' part, U V^T: climber c adds w_k R_cj to block (k, j), with
+  // R_cj = m w_j I - gamma dG/dv_j - gamma^2 dG/dx_j; U's columns (w_k e_a) go through T^-1
+  // now, for the Woodbury identity in newton_solve (Golub and Van Loan, Matrix
+  // Computations, 4th ed., section 2.1.4). 3 columns per climber, O(N) each.
+  const std::size_t nc = newton_att_.size();
+  newton_r_.resize(nc);
+  z_cols_.resize(3 * nc);
+  for (std::size_t c = 0; c < nc; ++c) {
+    const Attachment& at = newton_att_[c];
+    for (std::size_t j = 0; j < at.spread.count; ++j) {
+      newton_r_[c][j] = -gamma * newton_cj_[c].gv[j] - g2 * newton_cj_[c].gx[j];
+      newton_r_[c][j].diagonal().array() += at.mass_kg * at.spread.w[j];
+    }
+    for (int a = 0; a < 3; ++a) {
+      std::vector<Eigen::Vector3d>& z = z_cols_[3 * c + a];
+      z.assign(model_.nodes(), Eigen::Vector3d::Zero());
+      for (std::size_t i = 0; i < at.spread.count; ++i) {
+        const std::size_t k = at.spread.first + i;
+        if (k >= first && k <= last) z[k][a] = at.spread.w[i];
+      }
+      block_solve(z);
+    }
+  }
+  Eigen::MatrixXd cap = Eigen::MatrixXd::Identity(3 * nc, 3 * nc);  // I + V^T T^-1 U
+  for (std::size_t c = 0; c < nc; ++c)
+    for (std::size_t col = 0; col < 3 * nc; ++col)
+      cap.block<3, 1>(3 * c, col) += climber_product(c, z_cols_[col]);
+  capacitance_.compute(cap);
+}
+
+Eigen::Vector3d TetherSystem::climber_product(std::size_t c, const std::vector<Eigen::Vector3d>& z) const {
+  // (V^T z) for climber c: sum over its free nodes j of R_cj z_j.
+  const Attachment& at = newton_att_[c];
+  Eigen::Vector3d out = Eigen::Vector3d::Zero();
+  for (std::size_t j = 0; j < at.spread.count; ++j) {
+    const std::size_t k = at.spread.first + j;
+    if (layout_.is_free(k)) out.noalias() += newton_r_[c][j] * z[k];
+  }
+  return out;
+}
+
+void TetherSystem::block_solve(std::vector<Eigen::Vector3d>& r) const {
+  // Forward: z_k = r_k - L_k z_{k-1}, y_k = D_k^-1 z_k; back: w_k = y_k - E_k w_{k+1}.
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  Eigen::Vector3d z_prev = Eigen::Vector3d::Zero();
+  for (std::size_t k = first; k <= last; ++k) {
+    r[k].noalias() -= blocks_[k].lower * z_prev;
+    z_prev = r[k];
+    r[k] = blocks_[k].d_inv * z_prev;
+  }
+  for (std::size_t k = last; k-- > first;) r[k].noalias() -= blocks_[k].e_next * r[k + 1];
 }
 
 void TetherSystem::newton_solve(const double* b, double* x) const {
@@ -204,34 +260,53 @@ void TetherSystem::newton_solve(const double* b, double* x) const {
   using CMap = Eigen::Map<const Vec3>;
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
   const double gamma = newton_gamma_;
+  const Eigen::VectorXd& mass = model_.mesh.node_mass;
   constexpr std::size_t kStride = StateLayout::kPerNode;  // per free node: u_k (3) then v_k (3)
-  // Forward pass. The reduced right-hand side (M r_v)_k + gamma sum_j dF_k/dx_j r_u,j is
-  // formed node by node and eliminated at once: z_k = r_k - L_k z_{k-1}, y_k = D_k^-1 z_k.
-  // It only reads b; the back pass writes x (which may be b) after it.
-  Vec3 z_prev = Vec3::Zero();
+  auto r_u = [&](std::size_t k) { return CMap(b + kStride * (k - first)); };
+  auto r_v = [&](std::size_t k) { return CMap(b + kStride * (k - first) + 3); };
+  // The reduced right-hand side M r_v + gamma dF/dx r_u: the tether's part node by node ...
   for (std::size_t k = first; k <= last; ++k) {
     const NewtonBlocks& nb = blocks_[k];
-    const double* bk = b + kStride * (k - first);
-    Vec3 r = diag_[k] * CMap(bk + 3) + nb.gdx_self * CMap(bk);
-    if (k > first) r.noalias() += off_[k - 1] * CMap(bk - kStride + 3) + nb.gdx_prev * CMap(bk - kStride);
-    if (k < last) r.noalias() += off_[k] * CMap(bk + kStride + 3) + nb.gdx_next * CMap(bk + kStride);
-    r.noalias() -= nb.lower * z_prev;
-    z_prev = r;
-    work_[k].noalias() = nb.d_inv * r;
+    Vec3 r = mass[k] * r_v(k) + nb.gdx_self * r_u(k);
+    if (k > first) r.noalias() += nb.gdx_prev * r_u(k - 1);
+    if (k < last) r.noalias() += nb.gdx_next * r_u(k + 1);
+    work_[k] = r;
   }
-  // Back pass: w_k = y_k - E_k w_{k+1}; then dv = w, du = r_u + gamma dv. It reads b at k
-  // only, so x may be b. The quadrature rows are identity.
-  Vec3 w_next = Vec3::Zero();
-  for (std::size_t k = last + 1; k-- > first;) {
-    Vec3 w = work_[k];
-    w.noalias() -= blocks_[k].e_next * w_next;
+  // ... and each climber's, w_k (m w . r_v + gamma dG/dx . r_u) on its nodes.
+  const std::size_t nc = newton_att_.size();
+  for (std::size_t c = 0; c < nc; ++c) {
+    const Attachment& at = newton_att_[c];
+    Vec3 g = Vec3::Zero();
+    for (std::size_t j = 0; j < at.spread.count; ++j) {
+      const std::size_t k = at.spread.first + j;
+      if (!layout_.is_free(k)) continue;
+      g.noalias() += at.mass_kg * at.spread.w[j] * r_v(k) + gamma * (newton_cj_[c].gx[j] * r_u(k));
+    }
+    for (std::size_t i = 0; i < at.spread.count; ++i) {
+      const std::size_t k = at.spread.first + i;
+      if (layout_.is_free(k)) work_[k] += at.spread.w[i] * g;
+    }
+  }
+  block_solve(work_);  // y = T^-1 r
+  if (nc > 0) {
+    // Woodbury: dv = y - Z (I + V^T Z)^-1 V^T y, Z = T^-1 U.
+    Eigen::VectorXd vy(3 * nc);
+    for (std::size_t c = 0; c < nc; ++c) vy.segment<3>(3 * c) = climber_product(c, work_);
+    const Eigen::VectorXd q = capacitance_.solve(vy);
+    for (std::size_t col = 0; col < 3 * nc; ++col) {
+      const std::vector<Vec3>& z = z_cols_[col];
+      for (std::size_t k = first; k <= last; ++k) work_[k].noalias() -= q[col] * z[k];
+    }
+  }
+  // dv = w, du = r_u + gamma dv; the quadrature rows are identity. x may be b: each node's
+  // b is read before its x is written, and nothing later reads it.
+  for (std::size_t k = first; k <= last; ++k) {
     const double* bk = b + kStride * (k - first);
     double* xk = x + kStride * (k - first);
     for (int a = 0; a < 3; ++a) {
-      xk[a] = bk[a] + gamma * w[a];
-      xk[3 + a] = w[a];
+      xk[a] = bk[a] + gamma * work_[k][a];
+      xk[3 + a] = work_[k][a];
     }
-    w_next = w;
   }
   for (std::size_t q = layout_.dissipated_energy(); q < layout_.size(); ++q) x[q] = b[q];
 }
