@@ -58,7 +58,7 @@ struct TransitSink : OutputSink {
 };
 
 std::string scenario_text(int n, const std::string& atol_velocity, const std::string& hours,
-                          const std::string& load, const std::string& width) {
+                          const std::string& load, const std::string& width, const std::string& method) {
   return "name: climber transit benchmark\n"
          "planet: earth\n"
          "material: kestrel_k100\n"
@@ -70,7 +70,7 @@ std::string scenario_text(int n, const std::string& atol_velocity, const std::st
          std::to_string(n) + ", climber_load: " + load + ", climber_load_width: " + width +
          "}\n"
          "simulation: {duration: " +
-         hours + " h, output_interval: 1 h, method: bdf, rtol: 1.0e-6, atol_position: 1.0e-3, atol_velocity: " +
+         hours + " h, output_interval: 1 h, method: " + method + ", rtol: 1.0e-6, atol_position: 1.0e-3, atol_velocity: " +
          atol_velocity +
          "}\n"
          "climbers:\n"
@@ -82,7 +82,7 @@ std::string scenario_text(int n, const std::string& atol_velocity, const std::st
 
 int main(int argc, char** argv) {
   std::vector<int> sizes;
-  std::string atol_velocity = "1.0e-4", hours = "179", load = "smooth", width = "1";
+  std::string atol_velocity = "1.0e-4", hours = "179", load = "smooth", width = "0.5", method = "bdf";
   for (int i = 1; i < argc; ++i) {
     const std::string a = argv[i];
     if (a == "--atol-velocity" && i + 1 < argc) {
@@ -93,20 +93,22 @@ int main(int argc, char** argv) {
       load = argv[++i];
     } else if (a == "--width" && i + 1 < argc) {
       width = argv[++i];
+    } else if (a == "--method" && i + 1 < argc) {
+      method = argv[++i];
     } else if (!a.empty() && a[0] != '-') {
       sizes.push_back(std::stoi(a));
     } else {
-      std::fprintf(stderr, "usage: bench_climber [N ...] [--atol-velocity V] [--hours H] [--load smooth|point] [--width W]\n");
+      std::fprintf(stderr, "usage: bench_climber [N ...] [--atol-velocity V] [--hours H] [--load smooth|point] [--width W] [--method M]\n");
       return 2;
     }
   }
   if (sizes.empty()) sizes = {250, 500, 1000};
   std::printf("climber transit 0 -> 35786 km at 200 km/h, 20 t; %s h simulated; rtol 1e-6, atol 1e-3 m, %s m/s; "
-              "climber load %s (half width %s elements)\n",
-              hours.c_str(), atol_velocity.c_str(), load.c_str(), width.c_str());
+              "climber load %s (half width %s elements); %s\n",
+              hours.c_str(), atol_velocity.c_str(), load.c_str(), width.c_str(), method.c_str());
   int failures = 0;
   for (int n : sizes) {
-    const Scenario sc = load_scenario_text(scenario_text(n, atol_velocity, hours, load, width), "bench_climber.yaml", {});
+    const Scenario sc = load_scenario_text(scenario_text(n, atol_velocity, hours, load, width, method), "bench_climber.yaml", {});
     const TetherModel model = build_model(sc);
     TetherSystem sys(model);
     const std::vector<double> y0 = initial_state(sys, sc.initial);
