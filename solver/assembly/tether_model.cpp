@@ -80,6 +80,8 @@ TetherModel build_as_built(const Scenario& sc) {
       case_climbers = std::make_unique<ClimberLoad>(on_line, reference, point_models,
                                                     m.mesh.position);
       case_climbers->set_parked(true);
+      case_climbers->set_spread(sc.mesh.climber_load_smooth ? LoadSpread::smooth : LoadSpread::point,
+                                sc.mesh.climber_load_width);
       body.push_back(case_climbers.get());
     }
     m.built_under_case = c.name;
