@@ -52,6 +52,7 @@ void TetherSystem::node_state(double t, const double* y, Matrix3X& x, Matrix3X& 
 
 void TetherSystem::rhs(double t, const double* y, double* ydot) {
   node_state(t, y, x_, v_);
+  state_t_ = t;
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   f_.setZero();
   double dissipation = 0.0;
@@ -86,6 +87,7 @@ void TetherSystem::rhs(double t, const double* y, double* ydot) {
 
 void TetherSystem::jacobian(double t, const double* y, const double*, const BandJacobian& j) {
   node_state(t, y, x_, v_);
+  state_t_ = t;
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   jac_.set_zero();
   for (const ForceModel* m : forces_) m->add_jacobian(s, jac_);
@@ -114,6 +116,7 @@ void TetherSystem::jacobian(double t, const double* y, const double*, const Band
 
 void TetherSystem::roots(double t, const double* y, double* g) {
   node_state(t, y, x_, v_);
+  state_t_ = t;
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   g[0] = model_.bars->rupture_indicator(s, capacity_);
 }
@@ -161,6 +164,7 @@ namespace hawser {
 void TetherSystem::newton_jacobian(double t, const double* y) {
   newton_t_ = t;
   node_state(t, y, x_, v_);
+  state_t_ = t;
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   newton_jac_.set_zero();
   // The climbers' terms reach beyond the band for a smooth spread: they are kept apart, whole.
@@ -202,7 +206,14 @@ void TetherSystem::newton_factor(double gamma) {
     nb.d_inv = d.inverse();
   }
   blocks_[last].e_next.setZero();
-  // The climbers' part, U V^T: climber c adds w_k R_cj to block (k, j), with
+  // The climbers' part, taken afresh at the latest state the system saw (the integrator's
+  // current stage, while the tether's part may be some steps old): a moving climber's mass
+  // leaves the nodes the kept Jacobian put it on, and on short elements that stalls Newton.
+  if (model_.climbers) {
+    const TetherState now{state_t_, x_, v_, model_.mesh.node_mass};
+    model_.climbers->jacobian_blocks(now, newton_att_, newton_cj_);
+  }
+  // U V^T: climber c adds w_k R_cj to block (k, j), with
   // R_cj = m w_j I - gamma dG/dv_j - gamma^2 dG/dx_j; U's columns (w_k e_a) go through T^-1
   // now, for the Woodbury identity in newton_solve (Golub and Van Loan, Matrix
   // Computations, 4th ed., section 2.1.4). 3 columns per climber, O(N) each.

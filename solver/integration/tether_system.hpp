@@ -82,6 +82,7 @@ class TetherSystem : public OdeSystem {
   std::vector<std::size_t> touched_;  // nodes whose mass entries differ from the lumped ones
   mutable Eigen::VectorXd thomas_c_;
   Matrix3X x_, v_, f_;    // work arrays (all nodes)
+  double state_t_ = 0.0;  // the time of x_, v_ (the latest state evaluated)
   NodeJacobian jac_;
   NodeJacobian newton_jac_;                 // Jacobian of the last newton_jacobian()
   double newton_gamma_ = 0.0;
