@@ -157,7 +157,7 @@ std::vector<OutputField> AerodynamicDrag::output_fields(const std::vector<std::s
   return {{"/environment/wind", {k, 3}, "m/s", ""},
           {"/environment/air_density", {k}, "kg/m^3", ""},
           {"/environment/drag_force", {n, 3}, "N", ""},
-          {"/environment/drag_load", {n}, "N/m", "peak_aerodynamic_load_N_per_m"}};
+          {"/environment/drag_load", {n}, "N/m", "peak_aerodynamic_load_n_per_m"}};
 }
 
 void AerodynamicDrag::sample_outputs(const TetherState& s, const std::vector<std::size_t>& nodes,

@@ -86,7 +86,7 @@ class AerodynamicDrag : public ForceModel {
   /// /environment/wind (K,3) m/s and /environment/air_density (K) kg/m^3 at the recorded nodes;
   /// /environment/drag_force (N,3) N on each element; /environment/drag_load (N) N/m, the
   /// force per unit length |F_e| / l_e (independent of the mesh, unlike F_e), whose largest
-  /// recorded value goes to /summary as peak_aerodynamic_load_N_per_m.
+  /// recorded value goes to /summary as peak_aerodynamic_load_n_per_m.
   std::vector<OutputField> output_fields(const std::vector<std::size_t>& nodes) const override;
   void sample_outputs(const TetherState& s, const std::vector<std::size_t>& nodes,
                       std::vector<std::vector<double>>& rows) const override;

@@ -7,10 +7,12 @@
 
 namespace hawser {
 
-BarElements::BarElements(std::vector<double> ea_n, std::vector<double> l0_m, std::vector<double> tau_s)
+BarElements::BarElements(std::vector<double> ea_n, std::vector<double> l0_m, std::vector<double> tau_s,
+                         std::vector<double> cut_time_s)
     : ea_(std::move(ea_n)), l0_(std::move(l0_m)), k_(l0_.size()), c_(l0_.size()),
-      cut_time_(l0_.size(), std::numeric_limits<double>::infinity()) {
-  if (ea_.size() != l0_.size() || tau_s.size() != l0_.size())
+      cut_time_(std::move(cut_time_s)) {
+  if (cut_time_.empty()) cut_time_.assign(l0_.size(), std::numeric_limits<double>::infinity());
+  if (ea_.size() != l0_.size() || tau_s.size() != l0_.size() || cut_time_.size() != l0_.size())
     throw std::invalid_argument("BarElements: per-element arrays differ in length");
   for (std::size_t e = 0; e < l0_.size(); ++e) {
     k_[e] = ea_[e] / l0_[e];
@@ -79,8 +81,6 @@ void BarElements::add_jacobian(const TetherState& s, NodeJacobian& j) const {
     }
   }
 }
-
-void BarElements::cut(std::size_t e, double t_s) { cut_time_.at(e) = t_s; }
 
 std::vector<double> BarElements::event_times() const {
   std::vector<double> t;

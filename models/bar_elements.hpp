@@ -18,8 +18,11 @@ namespace hawser {
 
 class BarElements : public ForceModel {
  public:
-  /// Per element: axial stiffness EA [N], unstretched length L0 [m], retardation time tau [s].
-  BarElements(std::vector<double> ea_n, std::vector<double> l0_m, std::vector<double> tau_s);
+  /// Per element: axial stiffness EA [N], unstretched length L0 [m], retardation time tau [s],
+  /// and the time it is cut [s] (from then on it carries nothing: both parts fly free);
+  /// empty or +infinity: never cut.
+  BarElements(std::vector<double> ea_n, std::vector<double> l0_m, std::vector<double> tau_s,
+              std::vector<double> cut_time_s = {});
   std::string name() const override { return "bar elements"; }
   void add_forces(const TetherState& s, Matrix3X& f) const override;
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
@@ -27,8 +30,6 @@ class BarElements : public ForceModel {
   double dissipated_power(const TetherState& s) const override;  // c ldot^2 while taut
   double add_forces_and_dissipation(const TetherState& s, Matrix3X& f) const override;
 
-  /// Cuts element e at time t [s]: from then on it carries nothing (both parts fly free).
-  void cut(std::size_t e, double t_s);
   double cut_time(std::size_t e) const { return cut_time_[e]; }
   std::vector<double> event_times() const override;
 

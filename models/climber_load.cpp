@@ -8,12 +8,16 @@ namespace hawser {
 
 ClimberLoad::ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_nodes,
                          std::vector<std::shared_ptr<const ForceModel>> point_models,
-                         const Matrix3X& reference_position)
+                         const Matrix3X& reference_position,
+                         std::shared_ptr<const BarElements> bars,
+                         std::shared_ptr<const AerodynamicDrag> air)
     : climbers_(std::move(climbers)),
       s_nodes_(std::move(s_nodes)),
       spreader_(s_nodes_, LoadSpread::point, 1.0),
       point_models_(std::move(point_models)),
-      reference_(reference_position) {}
+      reference_(reference_position),
+      bars_(std::move(bars)),
+      air_(std::move(air)) {}
 
 void ClimberLoad::set_spread(LoadSpread kind, double half_width_elements) {
   spreader_ = LoadSpreader(s_nodes_, kind, half_width_elements);
@@ -65,7 +69,8 @@ ClimberLoad::PointState ClimberLoad::point(const TetherState& s, const Attachmen
   return p;
 }
 
-Eigen::Vector3d ClimberLoad::relative_acceleration(const TetherState& s, const Attachment& at) const {
+Eigen::Vector3d ClimberLoad::relative_acceleration(const TetherState& s,
+                                                   const Attachment& at) const {
   Eigen::Vector3d a = Eigen::Vector3d::Zero();
   for (std::size_t i = 0; i < at.spread.count; ++i) {
     const std::size_t k = at.spread.first + i;
@@ -118,8 +123,10 @@ Eigen::Vector3d ClimberLoad::point_force(double t, const PointState& p, const At
 void ClimberLoad::add_forces(const TetherState& s, Matrix3X& f) const {
   for (const Attachment& at : attachments(s.t)) {
     const PointState p = point(s, at);
-    const Eigen::Vector3d g = point_force(s.t, p, at, nullptr, nullptr) - at.mass_kg * relative_acceleration(s, at);
-    for (std::size_t i = 0; i < at.spread.count; ++i) f.col(at.spread.first + i) += at.spread.w[i] * g;
+    const Eigen::Vector3d g =
+        point_force(s.t, p, at, nullptr, nullptr) - at.mass_kg * relative_acceleration(s, at);
+    for (std::size_t i = 0; i < at.spread.count; ++i)
+      f.col(at.spread.first + i) += at.spread.w[i] * g;
   }
 }
 
@@ -175,7 +182,8 @@ Eigen::Vector3d ClimberLoad::reaction(const TetherState& s, const Attachment& at
   if (s.a == nullptr) return Eigen::Vector3d::Constant(std::nan(""));
   const Matrix3X& a = *s.a;
   Eigen::Vector3d a_c = relative_acceleration(s, at);
-  for (std::size_t i = 0; i < at.spread.count; ++i) a_c += at.spread.w[i] * a.col(at.spread.first + i);
+  for (std::size_t i = 0; i < at.spread.count; ++i)
+    a_c += at.spread.w[i] * a.col(at.spread.first + i);
   return at.mass_kg * a_c - point_force(s.t, point(s, at), at, nullptr, nullptr);
 }
 
@@ -219,7 +227,7 @@ std::vector<OutputField> ClimberLoad::output_fields(const std::vector<std::size_
     f.push_back({g + "on_tether", {}, "1", ""});
     f.push_back({g + "position", {3}, "m", ""});
     f.push_back({g + "velocity", {3}, "m/s", ""});
-    f.push_back({g + "drive_force", {}, "N", "climber_" + c.name + "_peak_drive_force_N"});
+    f.push_back({g + "drive_force", {}, "N", "climber_" + c.name + "_peak_drive_force_n"});
     f.push_back({g + "coriolis_force", {3}, "N", ""});
     f.push_back({g + "lateral_offset", {2}, "m", "climber_" + c.name + "_peak_lateral_offset_m"});
     f.push_back({g + "tension_below", {}, "N", ""});
@@ -248,7 +256,7 @@ std::vector<OutputAttribute> ClimberLoad::output_attributes() const {
     out.push_back({g, "to_m", p.to(), ""});
     out.push_back({g, "start_time_s", p.start_time(), ""});
     out.push_back({g, "end_time_s", p.end_time(), ""});
-    out.push_back({g, "top_speed_m_s", top_speed, ""});
+    out.push_back({g, "top_speed_m_per_s", top_speed, ""});
     out.push_back({g, "drag_area_m2", c.drag_area_m2, ""});
     out.push_back({g, "at_end", 0.0, ends[static_cast<int>(c.at_end)]});
     if (c.at_end == ClimberEnd::drop_payload) out.push_back({g, "end_mass_kg", c.end_mass_kg, ""});
@@ -287,7 +295,8 @@ void ClimberLoad::sample_outputs(const TetherState& s, const std::vector<std::si
     const PointState p = point(s, at);
     // The ribbon's direction under the climber, dr_c/ds = sum w_k' x_k (for point: the element's).
     Eigen::Vector3d along = Eigen::Vector3d::Zero();
-    for (std::size_t i = 0; i < at.spread.count; ++i) along += at.spread.dw[i] * s.x.col(at.spread.first + i);
+    for (std::size_t i = 0; i < at.spread.count; ++i)
+      along += at.spread.dw[i] * s.x.col(at.spread.first + i);
     const Eigen::Vector3d tangent = along.normalized();
     const Eigen::Vector3d reaction_n = reaction(s, at);
     // Coriolis force on the climber: -2 m Omega x v_c, from the point models' velocity terms.
@@ -295,7 +304,8 @@ void ClimberLoad::sample_outputs(const TetherState& s, const std::vector<std::si
     body_force(s.t, p, at.mass_kg, nullptr, &fv);
     const Eigen::Vector3d coriolis = fv * p.v;
     Eigen::Vector3d on_line = Eigen::Vector3d::Zero();
-    for (std::size_t i = 0; i < at.spread.count; ++i) on_line += at.spread.w[i] * reference_.col(at.spread.first + i);
+    for (std::size_t i = 0; i < at.spread.count; ++i)
+      on_line += at.spread.w[i] * reference_.col(at.spread.first + i);
     const Eigen::Vector3d offset = p.r - on_line;
     // Tensions just below and above the climber: the elements on either side of its nearest node.
     const std::size_t k = e + (at.xi >= 0.5 ? 1 : 0);

@@ -63,15 +63,16 @@ class ClimberLoad : public ForceModel {
  public:
   /// s_nodes: material coordinate of every node [m]; point_models: the forces that act on a
   /// point mass (gravity, frame, tides), evaluated at the climber.
+  /// bars: for the tensions next to each climber in the outputs (may be null); air: the air
+  /// (density and wind) for the drag of climbers with a drag area (null: no drag).
   ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_nodes,
-              std::vector<std::shared_ptr<const ForceModel>> point_models, const Matrix3X& reference_position);
+              std::vector<std::shared_ptr<const ForceModel>> point_models,
+              const Matrix3X& reference_position,
+              std::shared_ptr<const BarElements> bars = nullptr,
+              std::shared_ptr<const AerodynamicDrag> air = nullptr);
   std::string name() const override { return "climbers"; }
   /// The drag of climbers with a drag area leaves the change of the air with position out.
   bool exact_position_jacobian() const override { return !air_; }
-  /// The bars, for the tensions next to each climber in the outputs.
-  void set_bars(const BarElements* bars) { bars_ = bars; }
-  /// The air (density and wind) for the drag of climbers with a drag area.
-  void set_air(std::shared_ptr<const AerodynamicDrag> air) { air_ = std::move(air); }
 
   /// In parked mode (for the starting equilibrium) every climber that is not a sudden load
   /// sits at its start, at rest.
@@ -86,7 +87,8 @@ class ClimberLoad : public ForceModel {
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
   /// The attachments at s.t and, for each, its dG/dx_j and dG/dv_j (the whole Jacobian, also
   /// for a spread beyond a node's neighbours: for the integrator's Newton solver).
-  void jacobian_blocks(const TetherState& s, std::vector<Attachment>& at, std::vector<ClimberJacobian>& jac) const;
+  void jacobian_blocks(const TetherState& s, std::vector<Attachment>& at,
+                       std::vector<ClimberJacobian>& jac) const;
   std::vector<double> event_times() const override;
   std::vector<OutputField> output_fields(const std::vector<std::size_t>& nodes) const override;
   std::vector<OutputAttribute> output_attributes() const override;
@@ -122,10 +124,10 @@ class ClimberLoad : public ForceModel {
   std::vector<double> s_nodes_;
   LoadSpreader spreader_;
   std::vector<std::shared_ptr<const ForceModel>> point_models_;
-  std::shared_ptr<const AerodynamicDrag> air_;  // null: no air
   Matrix3X reference_;
+  std::shared_ptr<const BarElements> bars_;     // null: no tensions in the outputs
+  std::shared_ptr<const AerodynamicDrag> air_;  // null: no air
   bool parked_ = false;
-  const BarElements* bars_ = nullptr;
 };
 
 }  // namespace hawser

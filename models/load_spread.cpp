@@ -51,7 +51,8 @@ SpreadWeights LoadSpreader::at(double s, std::size_t element) const {
   // Elements the window touches; beyond the ends, the end elements continued.
   auto elem = [&](double x) {
     const long e = static_cast<long>(std::upper_bound(s_.begin(), s_.end(), x) - s_.begin()) - 1;
-    return static_cast<std::size_t>(std::min<long>(std::max<long>(e, 0), static_cast<long>(n_el) - 1));
+    const long last = static_cast<long>(n_el) - 1;
+    return static_cast<std::size_t>(std::min<long>(std::max<long>(e, 0), last));
   };
   const std::size_t e0 = elem(lo), e1 = elem(hi);
   out.first = e0;

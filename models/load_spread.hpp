@@ -19,7 +19,7 @@
 // Closed forms, with t = u / a and P, Q the kernel's distribution and first moment:
 //   P(t) = 1/2 + 15/16 (t - 2 t^3 / 3 + t^5 / 5),   Q(t) = -5/32 (1 - t^2)^3   (|t| <= 1),
 // integral over [p, q] of (alpha + beta sigma) rho(sigma - s) dsigma
-//   = (alpha + beta s) [P] + beta a [Q],   d/ds: beta [P],   d2/ds2: beta (rho(p - s) - rho(q - s)).
+//   = (alpha + beta s) [P] + beta a [Q];  d/ds: beta [P];  d2/ds2: beta (rho(p-s) - rho(q-s)).
 #include <array>
 #include <cstddef>
 #include <vector>

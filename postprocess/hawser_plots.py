@@ -179,18 +179,28 @@ def tension_figure(element_altitude, equilibrium_tension_N=None, tension_min_N=N
     return fig
 
 
+def moving_components(deflection):
+    """[(values, name)] of the deflection components that move: north-south is left out of a
+    planar run (where it stays exactly zero)."""
+    out = [(deflection.east_m, "east-west (+ east)")]
+    if np.size(deflection.north_m) and np.nanmax(np.abs(deflection.north_m)) > 0.0:
+        out.append((deflection.north_m, "north-south (+ north)"))
+    return out
+
+
 def deflection_profiles_figure(altitude_km, time_s, deflection, time_indices, geo_altitude_km=None):
-    """East-west and north-south deflection from equilibrium against altitude at a few times.
+    """Deflection from equilibrium against altitude at a few times: east-west, and north-south
+    when it is not zero throughout.
 
     altitude_km: (K) equilibrium altitude of the recorded nodes; time_s: (nt);
     deflection: Deflection with (nt, K) arrays in m; time_indices: which rows to draw.
     """
     fig = Figure(figsize=FIGSIZE)
-    axes = fig.subplots(1, 2, sharey=True)
+    comps = moving_components(deflection)
+    axes = fig.subplots(1, len(comps), sharey=True, squeeze=False)[0]
     tf, tu = time_scale(time_s)
     rows = list(time_indices)
-    for ax, values, name in ((axes[0], deflection.east_m, "east-west (+ east)"),
-                             (axes[1], deflection.north_m, "north-south (+ north)")):
+    for ax, (values, name) in zip(axes, comps):
         lf, lu = length_scale(values[rows] if rows else values)
         for i in rows:
             ax.plot(values[i] / lf, altitude_km, marker=".", markersize=3,
@@ -202,7 +212,7 @@ def deflection_profiles_figure(altitude_km, time_s, deflection, time_indices, ge
         ax.set_title(f"{name.split(' ')[0].capitalize()} deflection")
         ax.grid(True, alpha=0.3)
     axes[0].set_ylabel("altitude [km]")
-    _legend(axes[1], loc="best", fontsize="small")
+    _legend(axes[-1], loc="best", fontsize="small")
     fig.suptitle("Deflection from equilibrium along the tether")
     fig.tight_layout()
     return fig
@@ -214,12 +224,12 @@ def deflection_history_figure(time_s, deflection, altitude_km, picks):
     picks: [(label, node position in the K recorded nodes)], e.g. from nodes_nearest_altitudes.
     """
     fig = Figure(figsize=FIGSIZE)
-    axes = fig.subplots(2, 1, sharex=True)
+    comps = moving_components(deflection)
+    axes = fig.subplots(len(comps), 1, sharex=True, squeeze=False)[:, 0]
     tf, tu = time_scale(time_s)
     t = np.asarray(time_s) / tf
     cols = [i for _, i in picks]
-    for ax, values, name in ((axes[0], deflection.east_m, "east-west (+ east)"),
-                             (axes[1], deflection.north_m, "north-south (+ north)")):
+    for ax, (values, name) in zip(axes, comps):
         lf, lu = length_scale(values[:, cols] if cols else values)
         for label, i in picks:
             ax.plot(t, values[:, i] / lf, label=f"{altitude_km[i]:,.0f} km ({label})")
@@ -227,7 +237,7 @@ def deflection_history_figure(time_s, deflection, altitude_km, picks):
         ax.grid(True, alpha=0.3)
     _legend(axes[0], loc="upper right", fontsize="small")
     axes[0].set_title("Deflection from equilibrium at chosen altitudes")
-    axes[1].set_xlabel(f"time [{tu}]")
+    axes[-1].set_xlabel(f"time [{tu}]")
     fig.tight_layout()
     return fig
 
@@ -314,7 +324,8 @@ def anchor_force_figure(time_s, force_N):
     axes[0].set_title("Anchor force (/anchor/force)")
     hf, hu = si_scale(f[:, 1:], "N")
     axes[1].plot(t, f[:, 1] / hf, color="tab:red", label="east (+y)")
-    axes[1].plot(t, f[:, 2] / hf, color="tab:green", label="north (+z)")
+    if np.nanmax(np.abs(f[:, 2])) > 0.0:  # a planar run has none: no line of zeros
+        axes[1].plot(t, f[:, 2] / hf, color="tab:green", label="north (+z)")
     axes[1].set_ylabel(f"horizontal [{hu}]")
     axes[1].set_xlabel(f"time [{tu}]")
     for ax in axes:
@@ -333,8 +344,9 @@ def _along_or_east(values, east_component):
     return v[:, 1] if east_component else np.linalg.norm(v, axis=-1)
 
 
-def climber_figure(time_s, climbers, planet_radius_m):
-    """Climber tracks: altitude, drive force along the tether, Coriolis force (east component).
+def climber_figure(time_s, climbers, planet_radius_m, requested_m=None):
+    """Climber tracks: altitude reached (and the requested end, material coordinate, dashed),
+    drive force along the tether, Coriolis force (east component).
 
     climbers: name -> dict with any of "position" (nt, 3) m, "s" (nt) m, "drive_force" (nt or
     nt x 3) N, "coriolis_force" (nt x 3 or nt) N.
@@ -344,11 +356,21 @@ def climber_figure(time_s, climbers, planet_radius_m):
     tf, tu = time_scale(time_s)
     t = np.asarray(time_s) / tf
     for name, c in climbers.items():
-        if "position" in c:
-            axes[0].plot(t[:len(c["position"])], node_altitude_km(c["position"], planet_radius_m),
-                         label=name)
+        if "altitude" in c:
+            line, = axes[0].plot(t[:len(c["altitude"])], np.asarray(c["altitude"]) / 1e3,
+                                 label=f"{name}: altitude reached")
+        elif "position" in c:
+            line, = axes[0].plot(t[:len(c["position"])],
+                                 node_altitude_km(c["position"], planet_radius_m),
+                                 label=f"{name}: altitude reached")
         elif "s" in c:
-            axes[0].plot(t[:len(c["s"])], np.asarray(c["s"]) / 1e3, label=f"{name} (arc length s)")
+            line, = axes[0].plot(t[:len(c["s"])], np.asarray(c["s"]) / 1e3,
+                                 label=f"{name} (arc length s)")
+        else:
+            continue
+        if requested_m and name in requested_m:
+            axes[0].axhline(requested_m[name] / 1e3, color=line.get_color(), linestyle="--",
+                            linewidth=1.0, label=f"{name}: requested end (along the ribbon)")
     drives = {n: _along_or_east(c["drive_force"], False) for n, c in climbers.items()
               if "drive_force" in c}
     df, du = si_scale(np.concatenate(list(drives.values())) if drives else [], "N")
@@ -367,5 +389,97 @@ def climber_figure(time_s, climbers, planet_radius_m):
     for ax in axes:
         ax.grid(True, alpha=0.3)
     _legend(axes[0], loc="best", fontsize="small")
+    fig.tight_layout()
+    return fig
+
+
+def mark_events(axes, time_s, events):
+    """Vertical lines at the times of cuts and strikes on axes whose x axis is time as drawn by
+    the functions here (time_scale of the same times). events: (label, times_s, colour)."""
+    tf, _ = time_scale(time_s)
+    for n, ax in enumerate(axes):
+        for label, times, colour in events:
+            for i, te in enumerate(np.asarray(times, dtype=float)):
+                ax.axvline(te / tf, color=colour, linestyle="-.", linewidth=1.2,
+                           label=label if i == 0 and n == 0 else None)
+    _legend(axes[0], loc="best", fontsize="small")
+
+
+def safety_margin_figure(element_altitude_km, stress_max_pa, stress_eq_pa, sf_min, tension_min_n,
+                         ultimate_pa, design_sf=None, geo_altitude_km=None):
+    """The safety margins along the tether over the run, each against altitude (km):
+    the largest stress each element saw (and its static stress) against the design stress and
+    the ultimate strength; the smallest safety factor each element saw against the design's;
+    the smallest tension each element saw (the slack margin; 0 is slack)."""
+    fig = Figure(figsize=(FIGSIZE[0], FIGSIZE[1] * 1.1))
+    axes = fig.subplots(1, 3, sharey=True)
+    h = np.asarray(element_altitude_km, dtype=float)
+    sf_, su = si_scale([ultimate_pa], "Pa")
+    ax = axes[0]
+    ax.plot(np.asarray(stress_max_pa) / sf_, h, color="tab:red", label="largest over the run")
+    if stress_eq_pa is not None:
+        ax.plot(np.asarray(stress_eq_pa) / sf_, h, color="tab:blue", linewidth=0.9,
+                label="static state")
+    ax.axvline(ultimate_pa / sf_, color="k", linewidth=1.2, label="ultimate strength")
+    if design_sf:
+        ax.axvline(ultimate_pa / design_sf / sf_, color="k", linestyle="--", linewidth=1.0,
+                   label=f"design stress (ultimate / {design_sf:g})")
+    ax.set_xlim(0.0, 1.1 * max(ultimate_pa, float(np.nanmax(stress_max_pa))) / sf_)
+    ax.set_xlabel(f"stress [{su}]")
+    ax.set_ylabel("altitude [km]")
+    ax.set_title("Stress envelope", fontsize="medium")
+    _legend(ax, loc="best", fontsize="x-small")
+    ax = axes[1]
+    sf = np.asarray(sf_min, dtype=float)
+    sf = np.where(np.isfinite(sf), sf, np.nan)
+    ax.plot(sf, h, color="tab:red", label="smallest over the run")
+    if design_sf:
+        ax.axvline(design_sf, color="k", linestyle="--", linewidth=1.0, label="design")
+    ax.axvline(1.0, color="k", linewidth=1.2, label="1 (rupture)")
+    # Linear, from 0 to a little past the design value (far larger factors, at slack or
+    # lightly loaded elements, run off the axis: they are not the margin that matters).
+    top = 1.6 * max(design_sf or 0.0, float(np.nanmin(sf)) if np.isfinite(sf).any() else 1.0, 1.0)
+    ax.set_xlim(0.0, top)
+    ax.set_xlabel("safety factor [-]")
+    ax.set_title("Safety factor", fontsize="medium")
+    _legend(ax, loc="best", fontsize="x-small")
+    ax = axes[2]
+    tf_, tu = si_scale(tension_min_n, "N")
+    ax.plot(np.asarray(tension_min_n) / tf_, h, color="tab:purple", label="smallest over the run")
+    ax.axvline(0.0, color="k", linewidth=1.2, label="0 (slack)")
+    ax.set_xlabel(f"tension [{tu}]")
+    ax.set_title("Slack margin", fontsize="medium")
+    _legend(ax, loc="best", fontsize="x-small")
+    for ax in axes:
+        _geo_line(ax, geo_altitude_km)
+        ax.grid(True, alpha=0.3)
+        ax.xaxis.set_major_locator(MaxNLocator(4))
+    fig.suptitle("Safety margins along the tether")
+    fig.tight_layout()
+    return fig
+
+
+def weather_figure(element_altitude_km, drag_load_n_per_m, time_s, wind_m_s, node_altitude_km):
+    """Weather on the tether: the largest aerodynamic load per length each element saw, against
+    altitude; the wind speed over time at the recorded node where it blew hardest."""
+    fig = Figure(figsize=FIGSIZE)
+    axes = fig.subplots(1, 2)
+    load = np.nanmax(np.abs(np.asarray(drag_load_n_per_m, dtype=float)), axis=0)
+    h = np.asarray(element_altitude_km, dtype=float)
+    axes[0].plot(load, h, color="tab:blue")
+    axes[0].set_xlabel("largest load over the run [N/m]")
+    axes[0].set_ylabel("altitude [km]")
+    top = h[load > 1e-3 * np.nanmax(load)] if np.nanmax(load) > 0 else h
+    axes[0].set_ylim(0.0, max(1.2 * float(np.max(top)), 1.0))
+    axes[0].set_title("Aerodynamic load", fontsize="medium")
+    speed = np.linalg.norm(np.asarray(wind_m_s, dtype=float), axis=-1)  # (nt, K)
+    k = int(np.nanargmax(np.nanmax(speed, axis=0)))
+    tf, tu = time_scale(time_s)
+    axes[1].plot(np.asarray(time_s)[:len(speed)] / tf, speed[:, k], color="tab:green")
+    axes[1].set_xlabel(f"time [{tu}]")
+    axes[1].set_ylabel("wind speed [m/s]")
+    axes[1].set_title(f"Wind at {node_altitude_km[k]:,.1f} km altitude", fontsize="medium")
+    for ax in axes:
+        ax.grid(True, alpha=0.3)
     fig.tight_layout()
     return fig

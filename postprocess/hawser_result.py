@@ -1,12 +1,18 @@
-"""Reading a hawser result file ("hawser-timehistory", format_version 1) into plain arrays.
+"""Reading a hawser result file ("hawser-timehistory") into plain arrays.
 
-The layout is specified in shared design/architecture.md ("Result file"). Reading is tolerant:
-a missing or unreadable dataset becomes None and its path is listed in `Result.missing`, so a
-file from a failed, older or still-running run can still be reported on. Only a file that is not
-HDF5, or not a hawser result at all, is refused (NotAHawserResult).
+The layout is config/result_layout.yaml, the same file the program's recorder writes by: names,
+units and meanings come from there, and the units of every value read come from the file's own
+`units` attributes (a dataset's attribute; for a group's values, the attributes of its child
+group `units`). Nothing here guesses a unit from a name, and nothing parses the scenario's
+units: the file holds the planet and the material as resolved, in SI.
+
+Reading is tolerant: a missing or unreadable dataset becomes None and its path is listed in
+`Result.missing`, so a file from a failed, older or still-running run can still be reported on.
+Only a file that is not HDF5, or not a hawser result at all, is refused (NotAHawserResult).
 """
 
 import os
+from pathlib import Path
 
 # A run still being written holds the file open; HDF5 1.10's file locking would refuse a second
 # reader. Reading without the lock is safe here: we never write.
@@ -14,30 +20,55 @@ os.environ.setdefault("HDF5_USE_FILE_LOCKING", "FALSE")
 
 import h5py  # noqa: E402  (after the environment is set)
 import numpy as np  # noqa: E402
+import yaml  # noqa: E402  (Debian: python3-yaml, installed by scripts/install-deps)
 
-FORMAT_NAME = "hawser-timehistory"
-FORMAT_VERSION = 1
+LAYOUT_PATH = Path(__file__).resolve().parent.parent / "config" / "result_layout.yaml"
 
-# Every dataset the report uses, with the unit it is expected to carry.
-EXPECTED_UNITS = {
-    "/mesh/s0": "m",
-    "/mesh/node_mass": "kg",
-    "/mesh/element_area": "m^2",
-    "/mesh/element_L0": "m",
-    "/equilibrium/position": "m",
-    "/equilibrium/tension": "N",
-    "/time": "s",
-    "/nodes/position": "m",
-    "/nodes/velocity": "m/s",
-    "/elements/tension": "N",
-    "/energy/kinetic": "J",
-    "/energy/potential": "J",
-    "/energy/strain": "J",
-    "/energy/dissipated": "J",
-    "/anchor/force": "N",
-}
+
+def load_layout(path=LAYOUT_PATH):
+    """config/result_layout.yaml as nested dicts."""
+    with open(path, encoding="utf-8") as fh:
+        return yaml.safe_load(fh)
+
+
+LAYOUT = load_layout()
+FORMAT_NAME = LAYOUT["format"]
+FORMAT_VERSION = LAYOUT["format_version"]
+
+
+def pattern_matches(pattern, name):
+    """The layout's patterns: `*` stands for one or more characters other than '/'."""
+    import re
+    rx = "".join("[^/]+" if c == "*" else re.escape(c) for c in pattern)
+    return re.fullmatch(rx, name) is not None
+
+
+def layout_dataset(path):
+    """The layout's entry (dict) for dataset `path`, or None."""
+    for pattern, entry in LAYOUT["datasets"].items():
+        if pattern_matches(pattern, path):
+            return entry
+    return None
+
+
+def layout_value(group, name):
+    """The layout's entry (dict) for value `name` of group `group`, or None."""
+    for gpattern, values in LAYOUT["values"].items():
+        if not pattern_matches(gpattern, group):
+            continue
+        for pattern, entry in values.items():
+            if pattern_matches(pattern, name):
+                if entry.get("units") == "from /summary":
+                    return layout_value("/summary", name)
+                return entry
+    return None
+
+
+# Every dataset the report uses, with the unit the figures are drawn for (the layout's).
+EXPECTED_UNITS = {p: e["units"] for p, e in LAYOUT["datasets"].items() if "*" not in p}
 ENERGY_TERMS = ("kinetic", "potential", "strain", "dissipated")
-CLIMBER_FIELDS = ("s", "position", "velocity", "drive_force", "coriolis_force")
+CLIMBER_FIELDS = ("s", "altitude", "position", "velocity", "drive_force", "coriolis_force")
+ENVIRONMENT_FIELDS = ("wind", "drag_load")
 
 
 class NotAHawserResult(Exception):
@@ -79,11 +110,20 @@ class Result:
         self.program_version = None
         self.scenario_text = None
         self.summary = None  # dict of /summary attributes
+        self.summary_units = {}  # name -> units, from /summary/units (as stored)
+        self.planet = {}  # /planet values (SI, resolved by the program); empty on a bench
+        self.planet_units = {}
+        self.material = {}  # /material values
+        self.material_units = {}
+        self.events = {}  # "cut_time", "cut_altitude", "strike_time", "strike_altitude" -> array
+        self.climber_attrs = {}  # name -> {attribute: value} (mass_kg, from_m, to_m, ...)
+        self.environment = {}  # "wind" (nt, K, 3), "drag_load" (nt, N) when recorded
         self.s0_m = None  # (N+1) unstretched arc length of each node
         self.node_mass_kg = None  # (N+1)
         self.element_area_m2 = None  # (N)
         self.element_L0_m = None  # (N)
         self.eq_position_m = None  # (N+1, 3) rotating frame
+        self.as_built_position_m = None  # (N+1, 3) the as-built tether, unloaded
         self.eq_tension_N = None  # (N)
         self.time_s = None  # (nt)
         self.node_index = None  # (K) mesh node of each recorded node
@@ -141,19 +181,39 @@ def _read(f, path, result, ndim=None, width3=False):
         return None
     units = obj.attrs.get("units")
     if units is None:
-        assumed = EXPECTED_UNITS.get(path, "SI")
-        result.notes.append(f"{path} has no units attribute; assumed {assumed}.")
+        result.notes.append(f"{path} has no units attribute; its figures are left out.")
+        result.missing.append(path)
+        return None
     else:
         result.units[path] = _text(units)
-        want = EXPECTED_UNITS.get(path)
+        entry = layout_dataset(path)
+        want = None if entry is None else entry["units"]
         if want is not None and result.units[path] != want:
             result.notes.append(
-                f"{path} says units '{result.units[path]}', expected '{want}'; shown as stored.")
+                f"{path} says units '{result.units[path]}', the layout '{want}'; its figures, "
+                "drawn for the layout's units, are left out.")
+            result.missing.append(path)
+            return None
     if (ndim is not None and data.ndim != ndim) or (width3 and data.shape[-1] != 3):
         result.missing.append(path)
         result.notes.append(f"{path} has shape {data.shape}, not the expected layout; ignored.")
         return None
     return data
+
+
+def _values(f, group, result):
+    """The attributes of `group` and their units from its child group `units` (as stored).
+    A value without a unit there is noted, and its unit left out (never guessed)."""
+    values = {k: _plain(v) for k, v in f[group].attrs.items()}
+    units = {}
+    stored = f[group]["units"].attrs if "units" in f[group] else {}
+    for k in values:
+        if k in stored:
+            units[k] = _text(stored[k])
+        else:
+            result.notes.append(f"{group} value {k} has no unit in {group}/units; "
+                                "shown without one.")
+    return values, units
 
 
 def _check_header(f, path):
@@ -180,9 +240,11 @@ def _read_header(f, r):
     else:
         r.missing.append("/input/scenario")
     if "/summary" in f:
-        r.summary = {k: _plain(v) for k, v in f["/summary"].attrs.items()}
+        r.summary, r.summary_units = _values(f, "/summary", r)
     else:
         r.missing.append("/summary")
+    r.planet, r.planet_units = _values(f, "/planet", r) if "/planet" in f else ({}, {})
+    r.material, r.material_units = _values(f, "/material", r) if "/material" in f else ({}, {})
 
 
 def _read_static(f, r):
@@ -191,6 +253,7 @@ def _read_static(f, r):
     r.element_area_m2 = _read(f, "/mesh/element_area", r, ndim=1)
     r.element_L0_m = _read(f, "/mesh/element_L0", r, ndim=1)
     r.eq_position_m = _read(f, "/equilibrium/position", r, ndim=2, width3=True)
+    r.as_built_position_m = _read(f, "/mesh/as_built_position", r, ndim=2, width3=True)
     r.eq_tension_N = _read(f, "/equilibrium/tension", r, ndim=1)
 
 
@@ -207,14 +270,24 @@ def _read_histories(f, r):
         if e is not None:
             r.energy_J[term] = e
     r.anchor_force_N = _read(f, "/anchor/force", r, ndim=2, width3=True)
+    if "/events" in f:
+        for key in ("cut_time", "cut_altitude", "strike_time", "strike_altitude"):
+            e = _read(f, f"/events/{key}", r, ndim=1)
+            r.events[key] = np.zeros(0) if e is None else e
+    for key in ENVIRONMENT_FIELDS:
+        if f"/environment/{key}" in f:
+            e = _read(f, f"/environment/{key}", r)
+            if e is not None:
+                r.environment[key] = e
     if "/climbers" in f and isinstance(f["/climbers"], h5py.Group):
         for name, grp in f["/climbers"].items():
             if not isinstance(grp, h5py.Group):
                 continue
+            r.climber_attrs[name] = {k: _plain(v) for k, v in grp.attrs.items()}
             fields = {}
             for field in CLIMBER_FIELDS:
                 if field in grp and isinstance(grp[field], h5py.Dataset):
-                    fields[field] = np.asarray(grp[field][()], dtype=float)
+                    fields[field] = _read(f, f"/climbers/{name}/{field}", r)
                 else:
                     r.missing.append(f"/climbers/{name}/{field}")
             r.climbers[name] = fields
@@ -271,8 +344,9 @@ def _trim_time_axis(r):
     energy = {k: cut(f"/energy/{k}", v) for k, v in r.energy_J.items()}
     common = min((len(v) for v in energy.values()), default=0)
     r.energy_J = {k: v[:common] for k, v in energy.items()}  # the terms are summed: same rows
-    r.climbers = {n: {k: cut(f"/climbers/{n}/{k}", v) for k, v in c.items()}
+    r.climbers = {n: {k: cut(f"/climbers/{n}/{k}", v) for k, v in c.items() if v is not None}
                   for n, c in r.climbers.items()}
+    r.environment = {k: cut(f"/environment/{k}", v) for k, v in r.environment.items()}
 
 
 def load_result(path):

@@ -29,9 +29,10 @@ import matplotlib.pyplot as plt  # noqa: E402
 sys.dont_write_bytecode = True
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 import hawser_report  # noqa: E402
+from hawser_result import layout_value  # noqa: E402
 
 # Always compared when recorded; units from the name's ending.
-STANDARD_METRICS = ["min_safety_factor", "peak_east_west_m", "peak_north_south_m", "peak_tension_N"]
+STANDARD_METRICS = ["min_safety_factor", "peak_east_west_m", "peak_north_south_m", "peak_tension_n"]
 NUMBER = re.compile(r"^\s*([-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?)\s*(.*)$")
 
 
@@ -78,7 +79,8 @@ def plot_metric(rows, study, key, metric, path):
         ax.set_xticks(range(len(order)))
         ax.set_xticklabels(order, rotation=20)
     ax.set_xlabel(key + (f" [{nums[0][1]}]" if as_numbers and nums[0][1] else ""))
-    unit = hawser_report.unit_from_name(metric)
+    entry = layout_value("/summary", metric) or {}  # the contract's unit, not the name's
+    unit = "" if entry.get("units") in (None, "1", "text") else entry["units"]
     ax.set_ylabel(metric + (f" [{unit}]" if unit else ""))
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=7)

@@ -89,13 +89,12 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
   if (tide) point_models.push_back(tide);
   std::unique_ptr<ClimberLoad> parked;
   if (!l.parked.empty()) {
+    std::shared_ptr<const AerodynamicDrag> air;
+    if (l.mean_wind) air = std::dynamic_pointer_cast<const AerodynamicDrag>(m.mean_drag);
     parked = std::make_unique<ClimberLoad>(l.parked, m.equilibrium.s0_m, point_models,
-                                           m.mesh.as_built_position);
+                                           m.mesh.as_built_position, nullptr, air);
     parked->set_parked(true);
     parked->set_spread(l.spread, l.spread_width);
-    if (l.mean_wind)
-      if (auto air = std::dynamic_pointer_cast<const AerodynamicDrag>(m.mean_drag))
-        parked->set_air(air);
     if (!parked->attachments(0.0).empty()) set.added.push_back(parked.get());
   }
   if (l.mean_wind && m.mean_drag) set.added.push_back(m.mean_drag.get());

@@ -5,6 +5,8 @@
 #include "models/rotating_frame.hpp"
 #include "models/taper_design.hpp"
 #include "models/uniform_gravity.hpp"
+#include <limits>
+
 #include "solver/assembly/climber_builder.hpp"
 #include "solver/assembly/environment_builder.hpp"
 #include "solver/input/scenario.hpp"
@@ -99,14 +101,20 @@ TetherModel build_as_built(const Scenario& sc) {
     ea.push_back(sc.material.youngs_modulus_pa * m.mesh.element_area[e]);
     tau.push_back(sc.material.damping_time_s);
   }
-  m.bars = std::make_unique<BarElements>(ea, m.equilibrium.l0_m, tau);
   if (!sc.field.uniform) {
     m.mesh.node_mass[m.mesh.nodes() - 1] += counterweight_kg - m.mesh.as_built_counterweight_kg;
     m.mesh.counterweight_mass = counterweight_kg;
   }
-  add_environment(sc, m);  // drag, tides, cuts, strikes (solver/assembly/environment_builder.hpp)
+  // Drag, tides and the scheduled events (solver/assembly/environment_builder.hpp).
+  EnvironmentLoads env = build_environment(sc, m.mesh, m.reference_radius_m, m.spin_rate_rad_s);
+  for (auto& b : env.body) m.body.push_back(std::move(b));
+  std::vector<double> cut_time_s(m.mesh.elements(), std::numeric_limits<double>::infinity());
+  for (const ElementCut& c : env.cuts) cut_time_s[c.element] = c.time_s;
+  m.bars = std::make_shared<BarElements>(ea, m.equilibrium.l0_m, tau, cut_time_s);
+  m.jumps = std::move(env.jumps);
+  m.drag = env.drag;
+  m.mean_drag = env.mean_drag;
   m.ultimate_strength_pa = sc.material.ultimate_strength_pa;
-  m.mean_drag = mean_wind_drag(sc, m);
   return m;
 }
 
@@ -117,7 +125,7 @@ TetherModel build_model(const Scenario& sc) {
   // mean wind.
   const std::vector<double> reference = reference_distance(m.mesh);
   StaticLoads loads;
-  loads.parked = read_climbers(sc, reference, m.equilibrium.s0_m);
+  loads.parked = build_climbers(sc.climbers, reference, m.equilibrium.s0_m);
   loads.counterweight_kg = m.mesh.counterweight_mass;
   loads.mean_wind = m.mean_drag != nullptr;
   loads.tides = sc.environment.tides.in_static_state;
@@ -140,12 +148,9 @@ TetherModel build_model(const Scenario& sc) {
     for (const auto& b : m.body)
       if (b->acts_on_point_masses()) point_models.push_back(b);
     m.climbers = std::make_unique<ClimberLoad>(loads.parked, m.equilibrium.s0_m, point_models,
-                                               m.mesh.as_built_position);
-    m.climbers->set_bars(m.bars.get());
+                                               m.mesh.as_built_position, m.bars, m.drag);
     m.climbers->set_spread(sc.mesh.climber_load_smooth ? LoadSpread::smooth : LoadSpread::point,
                            sc.mesh.climber_load_width);
-    for (const auto& b : m.body)
-      if (auto air = std::dynamic_pointer_cast<const AerodynamicDrag>(b)) m.climbers->set_air(air);
   }
   return m;
 }

@@ -9,6 +9,7 @@
 #include "models/bar_elements.hpp"
 #include "models/climber_load.hpp"
 #include "models/force_model.hpp"
+#include "solver/assembly/environment_builder.hpp"
 #include "solver/assembly/equilibrium.hpp"
 #include "solver/assembly/mesh.hpp"
 
@@ -16,17 +17,10 @@ namespace hawser {
 
 struct Scenario;
 
-/// A sudden change of a node's velocity at a given time (a strike): momentum m dv is added.
-struct VelocityJump {
-  double time_s;
-  std::size_t node;
-  Eigen::Vector3d delta_v_m_s;
-};
-
 struct TetherModel {
   Mesh mesh;
   Equilibrium equilibrium;
-  std::unique_ptr<BarElements> bars;
+  std::shared_ptr<BarElements> bars;              // shared with the climbers (tensions)
   std::vector<std::shared_ptr<ForceModel>> body;  // gravity, frame, ... (not the bars); shared
                                                  // with the climbers, which feel some of them
   std::size_t static_body_models = 0;             // the first ones (gravity, frame) act in
@@ -44,6 +38,8 @@ struct TetherModel {
   /// The mean wind's drag (no gusts, no turbulence), the wind of the static state and of
   /// the modes; null when no wind blows at t = 0.
   std::shared_ptr<const ForceModel> mean_drag;
+  /// The full drag (also in `body`), which climbers with a drag area feel; null without air.
+  std::shared_ptr<const AerodynamicDrag> drag;
 
   std::size_t nodes() const { return mesh.nodes(); }
   std::size_t elements() const { return mesh.elements(); }

@@ -9,6 +9,7 @@
 #include <nlohmann/json.hpp>
 
 #include "solver/input/errors.hpp"
+#include "solver/output/caution.hpp"
 #include "solver/output/h5_writer.hpp"
 #include "solver/integration/modal_analysis.hpp"
 #include "solver/input/scenario.hpp"
@@ -94,8 +95,8 @@ nlohmann::json modes_json(const Scenario& sc, const TetherModel& model, const Mo
     j["modes"].push_back({{"index", i + 1},
                           {"period_s", finite_or_null(m.period_s)},
                           {"frequency_hz", m.eigenvalue.imag() / (2 * M_PI)},
-                          {"eigenvalue_real_1_s", m.eigenvalue.real()},
-                          {"eigenvalue_imag_1_s", m.eigenvalue.imag()},
+                          {"eigenvalue_real_per_s", m.eigenvalue.real()},
+                          {"eigenvalue_imag_per_s", m.eigenvalue.imag()},
                           {"damping_ratio", m.damping_ratio},
                           {"kind", mode_kind_name(m.kind)},
                           {"kinetic_fraction",
@@ -106,8 +107,7 @@ nlohmann::json modes_json(const Scenario& sc, const TetherModel& model, const Mo
                           {"largest_motion_altitude_m", m.peak_altitude_m}});
   }
   j["shapes_file"] = output.empty() ? json() : json(output);
-  j["caution"] = "hawser is a research tool, not a certification method; real structures answer to licensed "
-                 "engineering practice and the applicable standards.";
+  j["caution"] = kCaution;
   return j;
 }
 
@@ -118,6 +118,7 @@ void write_modes_h5(const std::string& path, const Scenario& sc, const TetherMod
   f.set_attribute("/", "format_version", 1);
   f.set_attribute("/", "program_version", HAWSER_VERSION);
   f.set_attribute("/", "scenario_name", sc.name);
+  f.set_attribute("/", "caution", kCaution);
   f.set_attribute("/", "frame", frame_of(sc));
   f.write_string("/input/scenario", sc.text_as_run);
   f.write_array("/mesh/s0", {nn}, model.equilibrium.s0_m.data(), "m");
@@ -185,6 +186,7 @@ int cmd_modes(const CommonOptions& opt, int k, const std::string& output, bool j
   } else {
     std::cout << modes_table(sc, model, r, wall_s);
     if (!output.empty()) std::cout << "  shapes: " << output << "\n";
+    std::cout << "\n" << kCautionLines;
   }
   return 0;
 }

@@ -8,11 +8,11 @@
 
 #include "solver/input/errors.hpp"
 #include "solver/integration/progress.hpp"
-#include "solver/cli/study_reader.hpp"
+#include "solver/input/study_reader.hpp"
 #include "solver/cli/sweep_folder.hpp"
 #include "solver/cli/sweep_pool.hpp"
 #include "solver/cli/sweep_tables.hpp"
-#include "solver/cli/variant_id.hpp"
+#include "solver/input/variant_id.hpp"
 
 namespace hawser {
 namespace {

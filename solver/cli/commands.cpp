@@ -4,6 +4,7 @@
 #include <iostream>
 #include <memory>
 
+#include "solver/output/caution.hpp"
 #include "solver/output/design_report.hpp"
 #include "solver/assembly/load_case_table.hpp"
 #include "solver/input/key_reference.hpp"
@@ -19,10 +20,10 @@
 namespace hawser {
 
 int cmd_check(const CommonOptions& opt) {
+  // The validation stage finds every input error (climbers on the tether, flyable profiles,
+  // climbers that would meet, a design that can stand) without building the model; whether
+  // the loaded tether has a static state is found by design, run and modes.
   const Scenario sc = load_scenario(opt.scenario, opt.overrides);
-  // Building the model checks what needs the mesh and the equilibrium: climbers on the
-  // tether, flyable profiles, climbers that would meet, a tension equilibrium.
-  build_model(sc);
   std::cout << opt.scenario << ": ok (" << sc.name << ", " << sc.mesh.elements << " elements)\n";
   return 0;
 }
@@ -68,7 +69,7 @@ std::string default_output(const std::string& scenario) {
 }
 
 void print_summary(const RunSummary& s, const std::string& file) {
-  std::printf("hawser run: %s at t = %.6g s (%.4g h), %zu outputs, wall %.3g s\n", s.status.c_str(), s.end_time_s,
+  std::printf("hawser run: %s at t = %.6g s (%.4g h), %zu outputs, wall %.3g s\n", to_string(s.status), s.end_time_s,
               s.end_time_s / 3600.0, s.outputs, s.wall_s);
   if (!s.message.empty()) std::printf("  %s\n", s.message.c_str());
   std::printf("  solver: %ld steps, %ld rhs evaluations, %ld Jacobian evaluations, %ld linear setups,\n"
@@ -84,13 +85,14 @@ void print_summary(const RunSummary& s, const std::string& file) {
   for (const auto& r : s.ruptures)
     std::printf("  element %zu reached its ultimate strength (%.4g Pa) at t = %.6g s\n", r.element, r.stress_pa, r.time_s);
   std::printf("  results: %s\n", file.c_str());
+  std::printf("\n%s", kCautionLines);
 }
 }  // namespace
 
 int cmd_run(const CommonOptions& opt, std::string output, const std::string& resume) {
   const Scenario sc = load_scenario(opt.scenario, opt.overrides);
   if (!sc.simulation.given)
-    throw InputError("error: " + sc.values.where("") + ": simulation: missing: `hawser run` needs a simulation "
+    throw InputError("error: " + sc.where + ": simulation: missing: `hawser run` needs a simulation "
                      "block (duration, output_interval; see `hawser keys`)\n");
   std::unique_ptr<ResumePoint> point;
   if (!resume.empty()) {
@@ -119,7 +121,7 @@ int cmd_run(const CommonOptions& opt, std::string output, const std::string& res
     mo.modes = sc.initial.mode_index;
     const ModalResult modes = modal_analysis(model, mo);
     if (static_cast<int>(modes.modes.size()) < sc.initial.mode_index)
-      throw InputError("error: " + sc.values.where("initial.mode.index") + ": initial.mode.index: only " +
+      throw InputError("error: " + sc.initial.mode_where + ": initial.mode.index: only " +
                        std::to_string(modes.modes.size()) + " modes found\n");
     const Mode& m = modes.modes[static_cast<std::size_t>(sc.initial.mode_index - 1)];
     const std::vector<double> ym = mode_initial_state(system, m, sc.initial.mode_amplitude_m);
@@ -141,8 +143,8 @@ int cmd_run(const CommonOptions& opt, std::string output, const std::string& res
   const RunSummary summary = run_simulation(system, y0, ro, recorder);
   recorder.finish(summary);
   print_summary(summary, output);
-  if (summary.status == "stopped") return 3;
-  if (summary.status == "failed") return 4;
+  if (summary.status == RunStatus::stopped) return 3;
+  if (summary.status == RunStatus::failed) return 4;
   return 0;
 }
 

@@ -11,7 +11,7 @@
 #include <optional>
 #include <string>
 
-#include "solver/cli/study.hpp"
+#include "solver/input/study.hpp"
 
 namespace hawser {
 

@@ -6,7 +6,7 @@
 #include <cstddef>
 #include <vector>
 
-#include "solver/cli/study.hpp"
+#include "solver/input/study.hpp"
 #include "solver/cli/sweep_folder.hpp"
 
 namespace hawser {

@@ -8,7 +8,7 @@
 #include <vector>
 
 #include "solver/output/result_summary.hpp"
-#include "solver/cli/study.hpp"
+#include "solver/input/study.hpp"
 #include "solver/cli/sweep_folder.hpp"
 
 namespace hawser {

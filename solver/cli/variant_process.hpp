@@ -9,7 +9,7 @@
 #include <chrono>
 #include <string>
 
-#include "solver/cli/study.hpp"
+#include "solver/input/study.hpp"
 #include "solver/cli/sweep_folder.hpp"
 
 namespace hawser {

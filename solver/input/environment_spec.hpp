@@ -1,8 +1,8 @@
 #pragma once
 // The environment and events of a scenario (keys environment.* and events.*), validated, in SI.
-// Read by read_environment() (solver/assembly/environment_builder.cpp); turned into force models, cuts
-// and strikes by add_environment(). Every item keeps where it was written, for the located
-// errors that can only be found once the mesh exists.
+// Read by read_environment() (solver/input/environment_reader.cpp); turned into force models,
+// cuts and strikes by build_environment() (solver/assembly/environment_builder.hpp). Every item
+// keeps where it was written, for messages about it.
 #include <Eigen/Core>
 #include <cstdint>
 #include <optional>
@@ -41,7 +41,9 @@ struct TurbulenceSpec {
   bool given = false;
   std::uint64_t seed = 1;
   double from_direction_deg = 0.0;   // the along-wind (u) axis: the wind blows from here [deg]
-  double sample_interval_s = 0.0;    // 0: a fifth of the smallest L/V of the stations
+  double sample_interval_s = 0.0;    // as given, or resolved by the reader: a fifth of the
+                                     // smallest L/V of the stations
+  double series_length_s = 0.0;      // the run and a margin past its end (set by the reader)
   std::vector<TurbulenceStationSpec> stations;
   std::string where;
 };

@@ -35,18 +35,15 @@ std::vector<std::string> string_list(const YAML::Node& n) {
 }  // namespace
 
 KeyReference KeyReference::from_yaml(const std::string& text) {
-  static const char* allowed_types[] = {"quantity", "integer", "boolean", "string", "choice",
-                                        "map", "list", "name_or_map", "vector3", "integer_list", "quantity_list"};
   KeyReference ref;
   const YAML::Node root = YAML::Load(text);
   for (const auto& entry : root["keys"]) {
     KeySpec k;
     k.path = entry.first.as<std::string>();
     const YAML::Node& v = entry.second;
-    k.type = v["type"].as<std::string>();
-    bool known = false;
-    for (const char* t : allowed_types) known = known || k.type == t;
-    if (!known) throw std::runtime_error("key reference: " + k.path + " has unknown type " + k.type);
+    const std::string type = v["type"].as<std::string>();
+    if (!parse_key_type(type, &k.type))
+      throw std::runtime_error("key reference: " + k.path + " has unknown type " + type);
     if (v["dimension"]) {
       k.dimension = v["dimension"].as<std::string>();
       if (!UnitTable::builtin().has_dimension(k.dimension))
@@ -101,7 +98,7 @@ std::vector<const KeySpec*> KeyReference::children(const std::string& pattern) c
 std::string KeyReference::describe() const {
   std::ostringstream os;
   for (const auto& k : keys_) {
-    os << k.path << "  (" << k.type;
+    os << k.path << "  (" << to_string(k.type);
     if (!k.dimension.empty()) os << ", " << UnitTable::builtin().si_unit(k.dimension);
     if (k.required) os << ", required";
     if (!k.required_when_key.empty()) os << ", required when " << k.required_when_key << " = " << k.required_when_value;

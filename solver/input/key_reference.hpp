@@ -6,11 +6,13 @@
 #include <string>
 #include <vector>
 
+#include "solver/input/key_type.hpp"
+
 namespace hawser {
 
 struct KeySpec {
   std::string path;           // "tether.safety_factor", "climbers[].mass"
-  std::string type;           // quantity | integer | boolean | string | choice | map | list | name_or_map | vector3
+  KeyType type = KeyType::quantity;
   std::string dimension;      // quantity / vector3: a row of the unit table
   bool required = false;
   std::string required_when_key, required_when_value;  // "field.kind=planet" split

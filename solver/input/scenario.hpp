@@ -1,5 +1,7 @@
 #pragma once
-// A validated scenario: plain structs in SI units, the input of every command.
+// A validated scenario: typed structs in SI units, the input of every command. It is the end
+// of the validation stage (solver/input/scenario_builder.cpp): a Scenario that exists has no
+// input error left to find, and no raw key travels beyond it.
 #include <array>
 #include <string>
 #include <vector>
@@ -7,8 +9,9 @@
 #include "models/material.hpp"
 #include "models/planet.hpp"
 #include "models/taper_design.hpp"
-#include "solver/input/environment_spec.hpp"  // environment and events (issue 5)
-#include "solver/input/scenario_values.hpp"
+#include "solver/input/climber_spec.hpp"
+#include "solver/input/environment_spec.hpp"
+#include "solver/input/integration_method.hpp"
 
 namespace hawser {
 
@@ -39,7 +42,7 @@ struct SimulationSpec {
   bool given = false;           // the scenario has a simulation block
   double duration_s = 0.0;
   double output_interval_s = 0.0;
-  std::string method;           // bdf | adams | erk
+  Method method = Method::bdf;
   double rtol = 0.0;
   double atol_position_m = 0.0;
   double atol_velocity_m_s = 0.0;
@@ -67,6 +70,7 @@ struct InitialSpec {
   std::vector<DisplacementSpec> displacements;
   std::vector<KickSpec> kicks;
   int mode_index = 0;           // 1 = lowest mode; 0 = none
+  std::string mode_where;       // where initial.mode.index was written
   double mode_amplitude_m = 0.0;
 };
 
@@ -106,11 +110,12 @@ struct Scenario {
   SimulationSpec simulation;
   InitialSpec initial;
   OutputSpec output;
-  EnvironmentSpec environment;  // air, wind, tides, cuts, strikes (solver/assembly/environment_builder.hpp)
+  EnvironmentSpec environment;  // air, wind, tides, cuts, strikes (environment_reader.hpp)
+  std::vector<ClimberSpec> climbers;     // climbers[] and every departure of schedules[]
   std::vector<LoadCaseSpec> load_cases;  // the load-case table of `hawser design`
   int built_under = -1;                  // load case the tether is built under; -1: unloaded
   double min_base_margin = 0.0;          // warn below this base-tension margin [-]
-  ScenarioValues values;     // everything as validated, with locations
+  std::string where;         // the file's location, for messages about the whole scenario
 };
 
 /// Reads, validates and checks a scenario; throws InputError listing every problem found

@@ -11,7 +11,7 @@ const ScenarioValue& ScenarioValues::at(const std::string& path) const {
 }
 
 bool ScenarioValues::is_keyword(const std::string& path, const std::string& keyword) const {
-  return has(path) && at(path).type == "quantity" && at(path).text == keyword;
+  return has(path) && at(path).type == KeyType::quantity && at(path).text == keyword;
 }
 
 std::string ScenarioValues::where(const std::string& path) const {

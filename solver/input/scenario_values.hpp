@@ -7,10 +7,13 @@
 #include <string>
 #include <vector>
 
+#include "solver/input/key_type.hpp"
+
 namespace hawser {
 
 struct ScenarioValue {
-  std::string type;       // the key's type from the reference
+  KeyType type = KeyType::map;  // the key's type from the reference
+  bool invalid = false;   // given, but its value was refused (no second "missing" for it)
   double number = 0.0;    // quantity (SI)
   long long integer = 0;  // integer; list: number of items
   bool boolean = false;

@@ -6,7 +6,10 @@
 #include <limits>
 
 #include "solver/input/errors.hpp"
+#include "solver/integration/event_schedule.hpp"
 #include "solver/integration/progress.hpp"
+#include "solver/integration/rupture_monitor.hpp"
+#include "solver/integration/summary_keeper.hpp"
 
 namespace hawser {
 
@@ -14,7 +17,7 @@ RunOptions run_options(const SimulationSpec& sim, const StateLayout& layout) {
   RunOptions o;
   o.duration_s = sim.duration_s;
   o.output_interval_s = sim.output_interval_s;
-  o.integrator.method = parse_method(sim.method);
+  o.integrator.method = sim.method;
   o.integrator.rtol = sim.rtol;
   o.integrator.max_step_s = sim.max_step_s;
   o.integrator.max_steps_between_outputs = sim.max_steps_per_output;
@@ -39,112 +42,71 @@ RunOptions run_options(const SimulationSpec& sim, const StateLayout& layout) {
 
 namespace {
 
-class SummaryKeeper {
+/// Writes one output: positions, velocities, diagnostics and accelerations at t.
+class OutputWriter {
  public:
-  SummaryKeeper(const TetherModel& m, RunSummary& s) : model_(m), s_(s) {}
-  void observe(double t, const Matrix3X& x, const TetherDiagnostics& d) {
-    for (std::size_t e = 0; e < d.tension_n.size(); ++e) {
-      if (d.tension_n[e] > s_.peak_tension_n) {
-        s_.peak_tension_n = d.tension_n[e];
-        s_.peak_tension_element = e;
-        s_.peak_tension_time_s = t;
-      }
-    }
-    if (d.max_stress_ratio > 0.0 && 1.0 / d.max_stress_ratio < s_.min_safety_factor) {
-      s_.min_safety_factor = 1.0 / d.max_stress_ratio;
-      s_.min_safety_factor_element = d.max_stress_element;
-      s_.min_safety_factor_time_s = t;
-    }
-    for (std::size_t k = 0; k < model_.nodes(); ++k) {
-      const Eigen::Vector3d u = x.col(k) - model_.mesh.position.col(k);
-      if (std::abs(u.y()) > s_.peak_east_west_m) {
-        s_.peak_east_west_m = std::abs(u.y());
-        s_.peak_east_west_node = k;
-        s_.peak_east_west_time_s = t;
-      }
-      if (std::abs(u.z()) > s_.peak_north_south_m) {
-        s_.peak_north_south_m = std::abs(u.z());
-        s_.peak_north_south_node = k;
-        s_.peak_north_south_time_s = t;
-      }
-    }
-    if (d.slack_elements > 0 && s_.first_slack_time_s < 0.0) s_.first_slack_time_s = t;
-    s_.max_slack_elements = std::max(s_.max_slack_elements, d.slack_elements);
+  OutputWriter(TetherSystem& sys, OutputSink& sink, SummaryKeeper& keeper, RunSummary& summary)
+      : sys_(sys), sink_(sink), keeper_(keeper), summary_(summary) {}
+  TetherDiagnostics write(double t, const std::vector<double>& y) {
+    TetherDiagnostics d = sys_.diagnose(t, y.data());
+    sys_.node_state(t, y.data(), x_, v_);
+    // Accelerations, for outputs that need them (a climber's drive force).
+    ydot_.resize(y.size());
+    sys_.rhs(t, y.data(), ydot_.data());
+    d.acceleration = Matrix3X::Zero(3, x_.cols());
+    const StateLayout& lay = sys_.layout();
+    for (std::size_t k = lay.first_free(); k <= lay.last_free(); ++k)
+      for (int a = 0; a < 3; ++a) d.acceleration(a, k) = ydot_[lay.v(k, a)];
+    sink_.record(t, x_, v_, d);
+    keeper_.observe(t, x_, d);
+    ++summary_.outputs;
+    return d;
   }
 
  private:
-  const TetherModel& model_;
-  RunSummary& s_;
+  TetherSystem& sys_;
+  OutputSink& sink_;
+  SummaryKeeper& keeper_;
+  RunSummary& summary_;
+  Matrix3X x_, v_;
+  std::vector<double> ydot_;
 };
+
+/// The integrator's failure into the summary, with the node of the largest local error.
+void record_failure(const IntegratorFailure& e, const StateLayout& lay, RunSummary& summary) {
+  summary.status = RunStatus::failed;
+  summary.message = e.what();
+  const long c = e.component();
+  if (c >= 0 && static_cast<std::size_t>(c) < lay.dissipated_energy()) {
+    const std::size_t local = static_cast<std::size_t>(c) % StateLayout::kPerNode;
+    summary.failure_node =
+        static_cast<long>(lay.first_free() + static_cast<std::size_t>(c) / StateLayout::kPerNode);
+    static const char* axis[] = {"x (up)", "y (east)", "z (north)"};
+    summary.message += "; largest local error at node " + std::to_string(summary.failure_node) +
+                       ", " + (local < 3 ? "displacement " : "velocity ") + axis[local % 3];
+  }
+}
+
+double seconds_since(std::chrono::steady_clock::time_point t0) {
+  return std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+}
 
 }  // namespace
 
-RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, const RunOptions& opt, OutputSink& sink) {
+RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, const RunOptions& opt,
+                          OutputSink& sink) {
   const auto wall0 = std::chrono::steady_clock::now();
+  const StateLayout& lay = sys.layout();
   RunSummary summary;
   SummaryKeeper keeper(sys.model(), summary);
+  OutputWriter out(sys, sink, keeper, summary);
+  RuptureMonitor ruptures(sys.model().ultimate_strength_pa, opt.stop_on_rupture, summary);
+  EventSchedule events(sys.model(), opt.event_times_s);
+  FlushClock clock(opt.flush);
   Progress progress(opt.duration_s, opt.progress);
   std::vector<double> y = opt.resume ? opt.resume->state : y0;
-  Matrix3X x, v;
-  std::vector<double> ydot(y.size());
-  auto emit = [&](double t) {
-    TetherDiagnostics d = sys.diagnose(t, y.data());
-    sys.node_state(t, y.data(), x, v);
-    // Accelerations, for outputs that need them (a climber's drive force).
-    sys.rhs(t, y.data(), ydot.data());
-    d.acceleration = Matrix3X::Zero(3, x.cols());
-    const StateLayout& lay = sys.layout();
-    for (std::size_t k = lay.first_free(); k <= lay.last_free(); ++k)
-      for (int a = 0; a < 3; ++a) d.acceleration(a, k) = ydot[lay.v(k, a)];
-    sink.record(t, x, v, d);
-    keeper.observe(t, x, d);
-    ++summary.outputs;
-    return d;
-  };
-
-  // Stop times: the caller's, every model's (gust onsets, cuts) and the strikes.
-  std::vector<double> events = opt.event_times_s;
-  for (const ForceModel* m : sys.model().forces())
-    for (double te : m->event_times()) events.push_back(te);
-  for (const VelocityJump& j : sys.model().jumps) events.push_back(j.time_s);
-  std::sort(events.begin(), events.end());
-  events.erase(std::unique(events.begin(), events.end()), events.end());
   const double t_start = opt.resume ? opt.resume->time_s : 0.0;
   long output_index = 1;
-  if (opt.resume) {
-    // Continue a run: its state already holds every strike up to t_start.
-    summary = opt.resume->summary;
-    output_index = opt.resume->next_output;
-  } else {
-    // Strikes at t = 0 act on the initial state.
-    for (const VelocityJump& j : sys.model().jumps)
-      if (j.time_s <= 0.0 && sys.layout().is_free(j.node))
-        for (int a = 0; a < 3; ++a) y[sys.layout().v(j.node, a)] += j.delta_v_m_s[a];
-    // A start already past the ultimate strength has no crossing for the root function to
-    // find: it is a rupture at t = 0.
-    const TetherDiagnostics d0 = emit(0.0);
-    if (d0.max_stress_ratio >= 1.0) {
-      summary.ruptures.push_back({0.0, d0.max_stress_element, d0.max_stress_ratio * sys.model().ultimate_strength_pa});
-      if (opt.stop_on_rupture) {
-        summary.status = "stopped";
-        summary.message = "element " + std::to_string(d0.max_stress_element) +
-                          " is past its ultimate strength in the starting state";
-        summary.stats = SolverStats{};
-        summary.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - wall0).count();
-        sink.flush();
-        return summary;
-      }
-    }
-  }
-  // Events already applied: a new run has applied those at t <= 0 above; a checkpoint is taken
-  // right after an output, before any event at that same time, so a resumed run still applies
-  // events at t_start.
-  std::size_t next_event = 0;
-  while (next_event < events.size() &&
-         (opt.resume ? events[next_event] < t_start : events[next_event] <= 0.0))
-    ++next_event;
-  auto last_flush = std::chrono::steady_clock::now();
-  int since_flush = 0;
   // Publish what was recorded, with the state to continue from (an output time's).
   auto flush_at = [&](double t_out) {
     RunCheckpoint c;
@@ -154,72 +116,58 @@ RunSummary run_simulation(TetherSystem& sys, const std::vector<double>& y0, cons
     c.summary = summary;
     sink.checkpoint(c);
     sink.flush();
-    since_flush = 0;
-    last_flush = std::chrono::steady_clock::now();
+    clock.flushed();
   };
-  if (!opt.resume) flush_at(0.0);
+  if (opt.resume) {
+    summary = opt.resume->summary;
+    output_index = opt.resume->next_output;
+    events.resume_at(t_start);
+  } else {
+    events.start(lay, y);  // strikes at t = 0 act on the initial state
+    if (ruptures.at_start(out.write(0.0, y))) {
+      summary.stats = SolverStats{};
+      summary.wall_s = seconds_since(wall0);
+      sink.flush();
+      return summary;
+    }
+    flush_at(0.0);
+  }
 
   TimeIntegrator integ(sys, t_start, y.data(), opt.integrator);
-  const double inf = std::numeric_limits<double>::infinity();
   double t = t_start;
-  summary.status = "complete";
+  summary.status = RunStatus::complete;
   try {
     while (t < opt.duration_s) {
       const double t_out = std::min(opt.duration_s, output_index * opt.output_interval_s);
-      const double t_stop = next_event < events.size() ? std::min(events[next_event], opt.duration_s) : inf;
-      const double reached = integ.advance(t_out, t_stop, y.data());
-      t = reached;
-      const bool rupture = !integ.root_info().empty() && integ.root_info()[0] > 0 && reached < t_out;
+      const double t_stop = std::min(events.next_time(), opt.duration_s);
+      t = integ.advance(t_out, t_stop, y.data());
+      const bool rupture = !integ.root_info().empty() && integ.root_info()[0] > 0 && t < t_out;
       if (rupture) {
-        const TetherDiagnostics d = sys.diagnose(t, y.data());
-        summary.ruptures.push_back(
-            {t, d.max_stress_element, d.max_stress_ratio * sys.model().ultimate_strength_pa});
-        if (opt.stop_on_rupture) {
-          emit(t);
-          summary.status = "stopped";
-          summary.message = "element " + std::to_string(d.max_stress_element) + " reached its ultimate strength at t = " +
-                            std::to_string(t) + " s";
+        if (ruptures.crossed(t, sys.diagnose(t, y.data()))) {
+          out.write(t, y);
           break;
         }
         continue;
       }
-      if (reached >= t_out) {
-        emit(t_out);
+      if (t >= t_out) {
+        out.write(t_out, y);
         ++output_index;
-        const double since_s =
-            std::chrono::duration<double>(std::chrono::steady_clock::now() - last_flush).count();
-        ++since_flush;
-        if (since_s >= opt.flush.wall_interval_s ||
-            (opt.flush.every_outputs > 0 && since_flush >= opt.flush.every_outputs))
-          flush_at(t_out);
-      } else if (next_event < events.size() && reached >= events[next_event]) {
-        // A discontinuity of the forcing: apply any strike, restart from low order.
-        for (const VelocityJump& j : sys.model().jumps)
-          if (j.time_s == events[next_event] && sys.layout().is_free(j.node))
-            for (int a = 0; a < 3; ++a) y[sys.layout().v(j.node, a)] += j.delta_v_m_s[a];
-        integ.restart(reached, y.data());
-        while (next_event < events.size() && events[next_event] <= reached) ++next_event;
+        if (clock.output_recorded()) flush_at(t_out);
+      } else if (t >= events.next_time()) {
+        // A discontinuity of the forcing: apply what is due, restart from low order.
+        events.apply_due(t, lay, y);
+        integ.restart(t, y.data());
       }
       progress.update(t, integ.stats().steps);
     }
   } catch (const IntegratorFailure& e) {
-    summary.status = "failed";
-    summary.message = e.what();
+    record_failure(e, lay, summary);
     t = e.time_s();
-    const StateLayout& lay = sys.layout();
-    const long c = e.component();
-    if (c >= 0 && static_cast<std::size_t>(c) < lay.dissipated_energy()) {
-      const std::size_t local = static_cast<std::size_t>(c) % StateLayout::kPerNode;
-      summary.failure_node = static_cast<long>(lay.first_free() + static_cast<std::size_t>(c) / StateLayout::kPerNode);
-      static const char* axis[] = {"x (up)", "y (east)", "z (north)"};
-      summary.message += "; largest local error at node " + std::to_string(summary.failure_node) + ", " +
-                         (local < 3 ? "displacement " : "velocity ") + axis[local % 3];
-    }
   }
   progress.finish();
   summary.end_time_s = t;
   summary.stats = integ.stats();
-  summary.wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - wall0).count();
+  summary.wall_s = seconds_since(wall0);
   // No flush here: the caller closes the sink with the summary (the recorder then writes its
   // final file straight from memory, without a last segment).
   return summary;

@@ -243,7 +243,8 @@ void TetherSystem::newton_factor(double gamma) {
   capacitance_.compute(cap);
 }
 
-Eigen::Vector3d TetherSystem::climber_product(std::size_t c, const std::vector<Eigen::Vector3d>& z) const {
+Eigen::Vector3d TetherSystem::climber_product(std::size_t c,
+                                              const std::vector<Eigen::Vector3d>& z) const {
   // (V^T z) for climber c: sum over its free nodes j of R_cj z_j.
   const Attachment& at = newton_att_[c];
   Eigen::Vector3d out = Eigen::Vector3d::Zero();

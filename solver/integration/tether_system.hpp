@@ -68,9 +68,9 @@ class TetherSystem : public OdeSystem {
   /// The mass matrix per axis (the same for x, y, z): lumped node masses plus each climber's
   /// m w w^T, so tridiagonal: diag_[k], off_[k] between k and k+1. Rebuilt for time t.
   void assemble_mass(double t);
-  /// Solves M a = f for the free nodes, prescribed nodes having zero acceleration: a 2x2
-  /// solve per lone climber (the Sherman-Morrison formula), the tridiagonal (Thomas)
-  /// algorithm on runs of nodes coupled by several climbers; a = f / m elsewhere.
+  /// Solves M a = f for the free nodes, prescribed nodes having zero acceleration: the
+  /// tridiagonal (Thomas) algorithm on each run of nodes coupled by climbers (a lone
+  /// climber's run is two nodes); a = f / m elsewhere.
   void solve_mass(Matrix3X& f_to_a) const;
   /// The same for climbers spread over more than two nodes (a smooth spread), exactly, by
   /// the Woodbury identity. diag_ and off_ then hold the band of M, with its couplings

@@ -25,24 +25,6 @@
 
 namespace hawser {
 
-Method parse_method(const std::string& name) {
-  if (name == "bdf") return Method::bdf;
-  if (name == "adams") return Method::adams;
-  if (name == "erk") return Method::erk;
-  if (name == "esdirk") return Method::esdirk;
-  throw InputError("unknown integration method '" + name + "' (valid: bdf, adams, erk, esdirk)");
-}
-
-std::string method_name(Method method) {
-  switch (method) {
-    case Method::bdf: return "bdf";
-    case Method::adams: return "adams";
-    case Method::erk: return "erk";
-    case Method::esdirk: return "esdirk";
-  }
-  return "unknown";
-}
-
 std::string SolverStats::to_string() const {
   std::ostringstream out;
   out << "steps " << steps << ", rhs evals " << rhs_evals << ", jac evals " << jac_evals
@@ -347,6 +329,57 @@ int weights_callback(N_Vector y, N_Vector w, void* user_data) {
   return sd::error_weights(y, b.rtol, b.atol.data(), b.atol.size() == 1, w) ? 0 : -1;
 }
 
+/// The set-up calls CVODE and ARKODE share, one row per family: both steppers apply
+/// apply_common_setup() and then do only what differs (method, tables, nonlinear solver).
+struct CommonSetup {
+  int (*set_user_data)(void*, void*);
+  int (*wf_tolerances)(void*, int (*)(N_Vector, N_Vector, void*));
+  int (*set_max_num_steps)(void*, long);
+  int (*set_max_step)(void*, sd::real);
+  int (*set_init_step)(void*, sd::real);
+  int (*set_linear_solver)(void*, SUNLinearSolver, SUNMatrix);
+  int (*set_jac_fn)(void*, int (*)(sd::real, N_Vector, N_Vector, SUNMatrix, void*, N_Vector,
+                                   N_Vector, N_Vector));
+  int (*root_init)(void*, int, int (*)(sd::real, N_Vector, sd::real*, void*));
+  void (*check)(int flag, const char* call);     // the integrator's own return flags
+  void (*check_ls)(int flag, const char* call);  // its linear-solver interface's
+  const char* names[8];                          // the calls above, for messages
+};
+
+const CommonSetup kCvodeSetup = {
+    CVodeSetUserData, CVodeWFtolerances, CVodeSetMaxNumSteps, CVodeSetMaxStep, CVodeSetInitStep,
+    CVodeSetLinearSolver, CVodeSetJacFn, CVodeRootInit, sd::check_cvode, sd::check_cvls,
+    {"CVodeSetUserData", "CVodeWFtolerances", "CVodeSetMaxNumSteps", "CVodeSetMaxStep",
+     "CVodeSetInitStep", "CVodeSetLinearSolver", "CVodeSetJacFn", "CVodeRootInit"}};
+
+const CommonSetup kArkodeSetup = {
+    HAWSER_ARKODE(SetUserData), HAWSER_ARKODE(WFtolerances), HAWSER_ARKODE(SetMaxNumSteps),
+    HAWSER_ARKODE(SetMaxStep), HAWSER_ARKODE(SetInitStep), HAWSER_ARKODE(SetLinearSolver),
+    HAWSER_ARKODE(SetJacFn), HAWSER_ARKODE(RootInit), sd::check_arkode, sd::check_arkode,
+    {HAWSER_ARKODE_NAME(SetUserData), HAWSER_ARKODE_NAME(WFtolerances),
+     HAWSER_ARKODE_NAME(SetMaxNumSteps), HAWSER_ARKODE_NAME(SetMaxStep),
+     HAWSER_ARKODE_NAME(SetInitStep), HAWSER_ARKODE_NAME(SetLinearSolver),
+     HAWSER_ARKODE_NAME(SetJacFn), HAWSER_ARKODE_NAME(RootInit)}};
+
+/// User data, tolerances (by weights), step limits, root functions and, for the implicit
+/// methods (newton), the linear solver, kept in `ls` for the stepper's lifetime.
+void apply_common_setup(const CommonSetup& c, void* m, const IntegratorOptions& o,
+                        CallbackBridge& bridge, N_Vector y0, SUNContext ctx, bool newton,
+                        LinearSolverChoice* ls) {
+  c.check(c.set_user_data(m, &bridge), c.names[0]);
+  c.check(c.wf_tolerances(m, weights_callback), c.names[1]);
+  c.check(c.set_max_num_steps(m, o.max_steps_between_outputs), c.names[2]);
+  if (o.max_step_s > 0) c.check(c.set_max_step(m, o.max_step_s), c.names[3]);
+  if (o.initial_step_s > 0) c.check(c.set_init_step(m, o.initial_step_s), c.names[4]);
+  if (newton) {
+    *ls = make_linear_solver(bridge, y0, ctx);
+    c.check_ls(c.set_linear_solver(m, ls->solver.get(), ls->matrix.get()), c.names[5]);
+    c.check_ls(c.set_jac_fn(m, ls->jacobian), c.names[6]);
+  }
+  const int roots = bridge.system.num_roots();
+  if (roots > 0) c.check(c.root_init(m, roots, root_callback), c.names[7]);
+}
+
 class CvodeStepper final : public Stepper {
  public:
   CvodeStepper(const IntegratorOptions& o, double t0, N_Vector y0,
@@ -361,28 +394,15 @@ class CvodeStepper final : public Stepper {
     sd::check_status(sd::install_error_handler<error_callback>(ctx, m, false, &bridge),
                      "install_error_handler (CVODE)");
     sd::check_cvode(CVodeInit(m, rhs_callback, t0, y0), "CVodeInit");
-    sd::check_cvode(CVodeSetUserData(m, &bridge), "CVodeSetUserData");
-    sd::check_cvode(CVodeWFtolerances(m, weights_callback), "CVodeWFtolerances");
-    sd::check_cvode(CVodeSetMaxNumSteps(m, o.max_steps_between_outputs), "CVodeSetMaxNumSteps");
-    if (o.max_step_s > 0) sd::check_cvode(CVodeSetMaxStep(m, o.max_step_s), "CVodeSetMaxStep");
-    if (o.initial_step_s > 0)
-      sd::check_cvode(CVodeSetInitStep(m, o.initial_step_s), "CVodeSetInitStep");
     if (o.max_order > 0) sd::check_cvode(CVodeSetMaxOrd(m, o.max_order), "CVodeSetMaxOrd");
     if (bdf_ && o.stability_limit_detection)
       sd::check_cvode(CVodeSetStabLimDet(m, SUNTRUE), "CVodeSetStabLimDet");
-
-    if (bdf_) {
-      LinearSolverChoice ls = make_linear_solver(bridge, y0, ctx);
-      matrix_ = std::move(ls.matrix);
-      linear_ = std::move(ls.solver);
-      sd::check_cvls(CVodeSetLinearSolver(m, linear_.get(), matrix_.get()), "CVodeSetLinearSolver");
-      sd::check_cvls(CVodeSetJacFn(m, ls.jacobian), "CVodeSetJacFn");
-    } else {
+    if (!bdf_) {
       nonlinear_.reset(sd::check_created(SUNNonlinSol_FixedPoint(y0, 0, ctx),
                                          "SUNNonlinSol_FixedPoint"));
       sd::check_cvode(CVodeSetNonlinearSolver(m, nonlinear_.get()), "CVodeSetNonlinearSolver");
     }
-    if (roots_ > 0) sd::check_cvode(CVodeRootInit(m, roots_, root_callback), "CVodeRootInit");
+    apply_common_setup(kCvodeSetup, m, o, bridge, y0, ctx, bdf_, &ls_);
   }
 
   void set_stop_time(double t_s) override {
@@ -433,8 +453,7 @@ class CvodeStepper final : public Stepper {
   int roots_;
   long n_;  // state size
   // Declared before mem_ so that the CVODE memory is freed first.
-  sd::Matrix matrix_;
-  sd::LinearSolver linear_;
+  LinearSolverChoice ls_;
   sd::NonlinearSolver nonlinear_;
   sd::CvodeMemory mem_;
 };
@@ -462,11 +481,6 @@ class ArkodeStepper final : public Stepper {
       // stiffly accurate, so the tether's undamped high modes are damped rather than
       // amplified (unlike BDF3-5), at 3 implicit stages per step. Each stage's Newton systems
       // go to the system's structured solver, as for bdf.
-      LinearSolverChoice ls = make_linear_solver(bridge, y0, ctx);
-      matrix_ = std::move(ls.matrix);
-      linear_ = std::move(ls.solver);
-      HAWSER_ARKODE_CHECKED(SetLinearSolver, m, linear_.get(), matrix_.get());
-      HAWSER_ARKODE_CHECKED(SetJacFn, m, ls.jacobian);
       sd::check_arkode(ARKStepSetTableNum(m, ARKODE_ARK324L2SA_DIRK_4_2_3, ARKODE_ERK_NONE),
                        "ARKStepSetTableNum");
       // A stage's derivative is deduced from its converged Newton solution,
@@ -479,16 +493,9 @@ class ArkodeStepper final : public Stepper {
     }
     sd::check_status(sd::install_error_handler<error_callback>(ctx, m, true, &bridge),
                      "install_error_handler (ARKODE)");
-    HAWSER_ARKODE_CHECKED(SetUserData, m, &bridge);
-    HAWSER_ARKODE_CHECKED(WFtolerances, m, weights_callback);
-    HAWSER_ARKODE_CHECKED(SetMaxNumSteps, m, o.max_steps_between_outputs);
-    if (o.max_step_s > 0) HAWSER_ARKODE_CHECKED(SetMaxStep, m, o.max_step_s);
-    if (o.initial_step_s > 0)
-      HAWSER_ARKODE_CHECKED(SetInitStep, m, o.initial_step_s);
     if (o.max_order > 0 && !implicit_)  // esdirk has one table (validate() allows only 3)
       HAWSER_ARKODE_CHECKED(SetOrder, m, o.max_order);
-    if (roots_ > 0)
-      HAWSER_ARKODE_CHECKED(RootInit, m, roots_, root_callback);
+    apply_common_setup(kArkodeSetup, m, o, bridge, y0, ctx, implicit_, &ls_);
   }
 
   void set_stop_time(double t_s) override {
@@ -549,8 +556,7 @@ class ArkodeStepper final : public Stepper {
   bool implicit_;  // esdirk (fi given), else erk (fe given)
   int roots_;
   long n_;  // state size
-  sd::Matrix matrix_;
-  sd::LinearSolver linear_;
+  LinearSolverChoice ls_;
   sd::ArkodeMemory mem_;
 };
 

@@ -1,12 +1,14 @@
 #pragma once
-// Time integration of an OdeSystem y' = f(t, y) with SUNDIALS 6.4. The methods, by name:
-//   "bdf"   CVODE variable-order BDF (orders 1-5), Newton iteration with the system's
-//           structured solver, or band LU on SUNBandMatrix storage with its analytic band
-//           Jacobian. For stiff runs.
-//   "adams" CVODE Adams-Moulton (orders 1-12), fixed-point iteration, no Jacobian.
-//   "erk"   ARKODE ARKStep explicit Runge-Kutta, the default table of order 4 (or the
-//           order asked for by max_order), embedded error estimate, adaptive steps.
-//   "esdirk" ARKODE ARKStep implicit Runge-Kutta: the L-stable, stiffly accurate ESDIRK of
+// Time integration of an OdeSystem y' = f(t, y) with SUNDIALS 6 or 7 (sundials_compat.hpp).
+// The methods (solver/input/integration_method.hpp):
+//   bdf     CVODE variable-order BDF, orders 1 to 2 by default (run_options(): BDF above
+//           order 2 is not A-stable and rings on undamped modes; max_order allows up to 5),
+//           Newton iteration with the system's structured solver, or band LU on
+//           SUNBandMatrix storage with its analytic band Jacobian. For stiff runs.
+//   adams   CVODE Adams-Moulton (orders 1-12), fixed-point iteration, no Jacobian.
+//   erk     ARKODE's ARKStep with an explicit table only: the default table of order 4 (or
+//           the order asked for by max_order), embedded error estimate, adaptive steps.
+//   esdirk  ARKODE's ARKStep with an implicit table only: the L-stable, stiffly accurate ESDIRK of
 //           order 3 of Kennedy & Carpenter (2003), Newton iteration with the system's
 //           structured solver when it has one. For smooth runs (free vibration, tides).
 // Every method uses the weighted RMS error norm with weights 1 / (rtol |y_i| + atol_i).
@@ -16,15 +18,10 @@
 #include <string>
 #include <vector>
 
+#include "solver/input/integration_method.hpp"
 #include "solver/integration/ode_system.hpp"
 
 namespace hawser {
-
-enum class Method { bdf, adams, erk, esdirk };
-
-/// "bdf" | "adams" | "erk"; anything else throws InputError listing the valid names.
-Method parse_method(const std::string& name);
-std::string method_name(Method method);
 
 struct IntegratorOptions {
   Method method = Method::bdf;

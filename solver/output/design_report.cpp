@@ -132,13 +132,13 @@ nlohmann::json design_json(const Scenario& sc, const TetherDesign& d, const Desi
   j["format_version"] = 1;
   j["scenario"] = sc.name;
   j["planet"] = {{"name", sc.planet.name},
-                 {"gm_m3_s2", sc.planet.gm_m3_s2},
-                 {"spin_rate_rad_s", sc.planet.spin_rate_rad_s},
+                 {"gm_m3_per_s2", sc.planet.gm_m3_s2},
+                 {"spin_rate_rad_per_s", sc.planet.spin_rate_rad_s},
                  {"equatorial_radius_m", sc.planet.equatorial_radius_m},
                  {"j2", sc.planet.j2},
                  {"j2_in_model", sc.j2}};
   j["material"] = {{"name", m.name},
-                   {"density_kg_m3", m.density_kg_m3},
+                   {"density_kg_per_m3", m.density_kg_m3},
                    {"youngs_modulus_pa", m.youngs_modulus_pa},
                    {"ultimate_strength_pa", m.ultimate_strength_pa},
                    {"damping_time_s", m.damping_time_s},
@@ -166,10 +166,10 @@ nlohmann::json design_json(const Scenario& sc, const TetherDesign& d, const Desi
                  {"peak_tension_altitude_m", f.peak_tension_altitude_m},
                  {"peak_stress_pa", f.peak_stress_pa},
                  {"min_safety_factor", f.min_safety_factor},
-                 {"longitudinal_wave_speed_m_s", f.longitudinal_speed_m_s},
+                 {"longitudinal_wave_speed_m_per_s", f.longitudinal_speed_m_s},
                  {"longitudinal_travel_time_s", f.longitudinal_travel_time_s},
-                 {"lateral_wave_speed_base_m_s", f.lateral_speed_base_m_s},
-                 {"lateral_wave_speed_min_m_s", f.lateral_speed_min_m_s},
+                 {"lateral_wave_speed_base_m_per_s", f.lateral_speed_base_m_s},
+                 {"lateral_wave_speed_min_m_per_s", f.lateral_speed_min_m_s},
                  {"lateral_travel_time_s", f.lateral_travel_time_s},
                  {"uniform_cable_stress_pa", f.uniform_cable_stress_pa}};
   json prof;

@@ -1,5 +1,6 @@
 #pragma once
-// Writes a run to the HDF5 result file of the architecture contract (format_version 1):
+// Writes a run to the HDF5 result file whose layout config/result_layout.yaml states (its
+// format_version; ResultLayout gives every unit written, and refuses a path it does not list):
 // static datasets (mesh, equilibrium, the scenario as run) at the start, time histories
 // appended as the run goes and published at every flush, the summary at the end. The root
 // attribute `status` is "running" until finish() writes "complete", "stopped" or "failed", so
@@ -17,6 +18,7 @@
 #include <vector>
 
 #include "solver/output/h5_writer.hpp"
+#include "solver/output/result_layout.hpp"
 #include "solver/integration/simulation.hpp"
 
 namespace hawser {
@@ -52,8 +54,19 @@ class ResultRecorder : public OutputSink {
     std::vector<double> peaks;  // largest |value| per field
   };
   void write_fixed(const Scenario& scenario, const TetherModel& model);
+  void write_resolved(const Scenario& scenario);  // /planet, /material, /events
+  // Writers that take the units from the layout.
+  void array(const std::string& path, const std::vector<hsize_t>& dims, const double* data);
+  void array(const std::string& path, const std::vector<hsize_t>& dims, const long long* data);
+  H5Writer::SeriesId series(const std::string& path, const std::vector<hsize_t>& dims);
+  void value(const std::string& group, const std::string& name, double number);
+  void value(const std::string& group, const std::string& name, long long number);
+  void value(const std::string& group, const std::string& name, const std::string& text);
+  double element_altitude_m(std::size_t element) const;  // midpoint, at the starting state
+  double node_altitude_m(std::size_t node) const;
   void publish_xdmf() const;
   std::string path_;
+  const ResultLayout& layout_ = ResultLayout::embedded();
   H5Writer file_;
   const TetherModel& model_;
   std::vector<std::size_t> nodes_;
@@ -63,6 +76,7 @@ class ResultRecorder : public OutputSink {
       anchor_force_, angular_momentum_, angular_impulse_;
   std::vector<double> row_;
   std::vector<double> times_;  // every output time, for the .xmf
+  double scenario_safety_factor_ = 0.0;  // the design's, for /summary (0: none)
 };
 
 }  // namespace hawser

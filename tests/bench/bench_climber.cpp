@@ -70,7 +70,7 @@ std::string scenario_text(int n, const std::string& atol_velocity, const std::st
          "tether: {profile: constant_stress, safety_factor: 2, base_design_load: 196.1 kN, top_altitude: 100000 km,\n"
          "         section: {shape: ribbon, width_to_thickness: 1000}}\n"
          "counterweight: {mass: computed}\n"
-         "anchor: {latitude: 0 deg, longitude: -160 deg}\n"
+         "anchor: {latitude: 0 deg, longitude: -125 deg}\n"
          "mesh: {elements: " +
          std::to_string(n) + ", climber_load: " + load + ", climber_load_width: " + width +
          "}\n"
@@ -128,7 +128,7 @@ int main(int argc, char** argv) {
     const double cpu = double(std::clock() - c0) / CLOCKS_PER_SEC;
     std::printf("N=%d: %s at %.4g h; %ld steps, %ld rhs, %ld jac, %ld setups, %ld etf, %ld nni, %ld nlf, %zu stop "
                 "times; wall %.1f s, cpu %.1f s, %.2f us/step\n",
-                n, s.status.c_str(), s.end_time_s / 3600.0, s.stats.steps, s.stats.rhs_evals, s.stats.jac_evals,
+                n, to_string(s.status), s.end_time_s / 3600.0, s.stats.steps, s.stats.rhs_evals, s.stats.jac_evals,
                 s.stats.linear_setups, s.stats.error_test_failures, s.stats.nonlinear_iterations,
                 s.stats.nonlinear_failures, stops, wall, cpu, 1e6 * cpu / std::max(1L, s.stats.steps));
     std::printf("      climber at %.1f km altitude; peak drive force %.1f kN; offset from the line at rest up to "
@@ -136,7 +136,7 @@ int main(int argc, char** argv) {
                 sink.last_altitude_m / 1e3, sink.peak_drive_n / 1e3, sink.east_m / 1e3, sink.west_m / 1e3,
                 sink.top_u.x() / 1e3, sink.top_u.y() / 1e3);
     std::fflush(stdout);
-    if (s.status != "complete") ++failures;
+    if (s.status != RunStatus::complete) ++failures;
   }
   return failures == 0 ? 0 : 1;
 }

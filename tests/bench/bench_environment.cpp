@@ -94,7 +94,7 @@ void print_run(const char* label, int k, const Timing& t) {
   const SolverStats& s = t.summary.stats;
   std::printf("%-5s run %d: %s at %.4g h; %ld steps, %ld rhs, %ld jac, %ld setups, %ld etf, %ld nlf; wall %.3f s, "
               "%.2f us/step\n",
-              label, k, t.summary.status.c_str(), t.summary.end_time_s / 3600.0, s.steps, s.rhs_evals, s.jac_evals,
+              label, k, to_string(t.summary.status), t.summary.end_time_s / 3600.0, s.steps, s.rhs_evals, s.jac_evals,
               s.linear_setups, s.error_test_failures, s.nonlinear_failures, t.wall_s,
               1e6 * t.wall_s / static_cast<double>(std::max(1L, s.steps)));
   std::fflush(stdout);
@@ -143,7 +143,7 @@ int main(int argc, char** argv) {
     print_run("calm", k, c);
     const Timing s = run_case(storm_text, "demo+storm.yaml", storm_set);
     print_run("storm", k, s);
-    failures += (c.summary.status != "complete") + (s.summary.status != "complete");
+    failures += (c.summary.status != RunStatus::complete) + (s.summary.status != RunStatus::complete);
     if (c.wall_s < best_calm.wall_s) best_calm = c;
     if (s.wall_s < best_storm.wall_s) best_storm = s;
   }

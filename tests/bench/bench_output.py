@@ -24,7 +24,7 @@ material: kestrel_k100
 tether: {profile: constant_stress, safety_factor: 2, base_design_load: 196.1 kN, top_altitude: 100000 km,
          section: {shape: ribbon, width_to_thickness: 1000}}
 counterweight: {mass: computed}
-anchor: {latitude: 0 deg, longitude: -160 deg}
+anchor: {latitude: 0 deg, longitude: -125 deg}
 mesh: {elements: 400}
 simulation: {duration: 168 h, output_interval: 5 min, method: bdf, rtol: 1.0e-6,
              atol_position: 1.0e-3, atol_velocity: 1.0e-4}

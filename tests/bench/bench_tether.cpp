@@ -1,6 +1,7 @@
-// Benchmark of the dynamics core on the cases of the SciPy peer (../shared/peers/scipy-tether).
+// Benchmark of the dynamics core on the cases of the SciPy reference program the README's
+// "Speed" section compares with (written for the comparison; not part of this repository).
 //
-//   bench_tether p1 N [method]   the peer's own case: Earth (WGS 84), fibre 1300 kg/m^3,
+//   bench_tether p1 N [method]   the reference program's case: Earth (WGS 84), fibre 1300 kg/m^3,
 //                                630 GPa, 63 GPa, safety factor 2, constant-stress taper to
 //                                100,000 km, base area 20000*9.80665/31.5e9 m^2, counterweight
 //                                from the design, N equal elements, no damping, east-west
@@ -10,7 +11,7 @@
 //                                geometrically from 1 km at the ground, Kelvin-Voigt damping
 //                                (retardation time 0.1 s), the same perturbation, one day.
 // Prints steps, right-hand-side and Jacobian evaluations and wall time; a measurement, not a
-// test. Run on an idle machine; compare side by side with the peer's bench.py.
+// test. Run on an idle machine; compare side by side with the reference program.
 #include <chrono>
 #include <cstdio>
 #include <string>
@@ -73,8 +74,8 @@ int main(int argc, char** argv) {
   const double wall = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   std::printf("%s N=%d %s rtol %s: %s, %ld steps, %ld rhs, %ld jac, %ld setups, %ld etf, %ld nlf, wall %.3f s, "
               "%.2f us/step, %ld nni, top u_y %.3f m\n",
-              which.c_str(), n, method.c_str(), rtol.c_str(), s.status.c_str(), s.stats.steps, s.stats.rhs_evals,
+              which.c_str(), n, method.c_str(), rtol.c_str(), to_string(s.status), s.stats.steps, s.stats.rhs_evals,
               s.stats.jac_evals, s.stats.linear_setups, s.stats.error_test_failures, s.stats.nonlinear_failures, wall,
               1e6 * wall / std::max(1L, s.stats.steps), s.stats.nonlinear_iterations, sink.last_uy_top);
-  return s.status == "complete" ? 0 : 1;
+  return s.status == RunStatus::complete ? 0 : 1;
 }

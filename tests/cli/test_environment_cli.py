@@ -1,4 +1,4 @@
-"""The environment through the command line (issue 5, items 5-9): the storm and cut scenarios
+"""The environment through the command line: the storm and cut scenarios
 run shortened and leave their environment datasets in the result file; bad environment and
 event keys are refused with exit code 2, the file:line: of the fault and the key's path.
 
@@ -92,9 +92,9 @@ def main():
                 c.check(abs(rho[0, 0] - 1.2250) < 1e-3, "air density at the anchor is the sea-level standard",
                         f"{rho[0, 0]}")
                 c.check(rho[0, -1] == 0.0, "no air at the top")
-                peak = f["summary"].attrs.get("peak_aerodynamic_load_N_per_m", -1.0)
+                peak = f["summary"].attrs.get("peak_aerodynamic_load_n_per_m", -1.0)
                 c.check(abs(peak - np.max(load[:])) <= 1e-9 * peak and peak > 1.0,
-                        "summary peak_aerodynamic_load_N_per_m is the largest recorded load", f"{peak}")
+                        "summary peak_aerodynamic_load_n_per_m is the largest recorded load", f"{peak}")
                 a_anchor = np.linalg.norm(tide[0, 0])
                 scale = 4.9028e12 * 6378137.0 / 3.844e8 ** 3
                 c.check(0.2 * scale < a_anchor < 3.0 * scale, "tidal acceleration at the anchor ~ GM R / D^3",

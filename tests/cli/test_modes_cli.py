@@ -46,6 +46,12 @@ def main():
             f.write(STRING)
         h5 = os.path.join(tmp, "string_modes.h5")
 
+        # Text form: it ends with the caution (README, "Caution").
+        p = run(scenario, "-k", "2")
+        tail = p.stdout.strip().splitlines()[-2:]
+        c.check(p.returncode == 0 and "not a certification method" in " ".join(tail),
+                "modes' text output ends with the caution", "\n".join(tail))
+
         # JSON form, with the shape file.
         p = run(scenario, "-k", "6", "--json", "-o", h5)
         c.check(p.returncode == 0, "modes --json exits 0", p.stderr)
@@ -89,6 +95,8 @@ def main():
                 c.check(attr(f, "format") == "hawser-modes" and int(f.attrs["format_version"]) == 1,
                         "HDF5 root attributes format, format_version")
                 c.check("modes test string" in f["/input/scenario"][()].decode(), "HDF5 keeps the scenario as run")
+                c.check("not a certification method" in attr(f, "caution"),
+                        "HDF5 root caution attribute")
                 units = {"period": "s", "frequency": "Hz", "damping_ratio": "1", "eigenvalue_real": "1/s",
                          "eigenvalue_imag": "1/s", "kind": "1", "kinetic_fraction": "1",
                          "largest_motion_altitude": "m", "shape_real": "m", "shape_imag": "m"}
@@ -132,7 +140,7 @@ def main():
             d = json.loads(p.stdout)
             c.check(d["stiffness_negative_directions"] == 0, "demo: positive definite tangent stiffness")
             for m in d["modes"]:
-                lam = complex(m["eigenvalue_real_1_s"], m["eigenvalue_imag_1_s"])
+                lam = complex(m["eigenvalue_real_per_s"], m["eigenvalue_imag_per_s"])
                 c.check(abs(m["period_s"] * lam.imag / (2 * math.pi) - 1) < 1e-12, f"demo mode {m['index']}: period")
                 c.check(abs(m["damping_ratio"] + lam.real / abs(lam)) < 1e-15, f"demo mode {m['index']}: damping ratio")
                 c.check(0 <= m["largest_motion_altitude_m"] <= 1.0e8 + 1, f"demo mode {m['index']}: altitude on the tether")

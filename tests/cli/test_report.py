@@ -3,7 +3,7 @@
 
 Usage: /usr/bin/python3 test_report.py [--hawser PATH] [--source DIR]
 --hawser is accepted for the common test interface and not used: the result files are built
-here with h5py, following the layout of shared design/architecture.md ("Result file").
+here with h5py, following config/result_layout.yaml (names, units, format version).
 
 The synthetic tether: NODES nodes on a straight radial line from the anchor (R, 0, 0) to
 TOP_M above it, moving with a known motion about that equilibrium,
@@ -36,7 +36,7 @@ REPORT = POST / "hawser_report.py"
 sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, str(POST))
 import hawser_plots  # noqa: E402
-import hawser_scenario  # noqa: E402
+import hawser_result  # noqa: E402
 
 PYTHON = "/usr/bin/python3"
 
@@ -50,7 +50,7 @@ A_NS, P_NS = 700.0, 5400.0  # m, s
 A_UP = 50.0  # m
 NT = 61
 T_END = 7200.0  # s
-SUMMARY = {"peak_tension_N": 123456.0, "peak_tension_element": 7, "peak_tension_time_s": 1234.5,
+SUMMARY = {"peak_tension_n": 123456.0, "peak_tension_element": 7, "peak_tension_time_s": 1234.5,
            "min_safety_factor": 2.375, "peak_east_west_m": 1993.18, "peak_north_south_m": 698.5,
            "steps": 4321, "rhs_evals": 9876, "jac_evals": 55, "error_test_failures": 3,
            "nonlinear_failures": 1}
@@ -64,8 +64,8 @@ planet:
 tether:
   nodes: 20
 """
-FIGURES = ["tension", "deflection_profiles", "deflection_history", "deflection_map", "energy",
-           "anchor_force", "climbers"]
+FIGURES = ["safety_margins", "tension", "deflection_profiles", "deflection_history",
+           "deflection_map", "energy", "anchor_force", "climbers"]
 CAUTION_PHRASES = ["not a certification method", "real structure is safe",
                    "licensed engineering practice", "applicable standards"]
 
@@ -126,16 +126,34 @@ def write_result(path, status="complete", parts=("all",), keep=None, extra_rows=
     pad = lambda a: np.concatenate([a, np.zeros((extra_rows,) + a.shape[1:])])  # noqa: E731
     with h5py.File(path, "w") as f:
         f.attrs["format"] = "hawser-timehistory"
-        f.attrs["format_version"] = 1
+        f.attrs["format_version"] = hawser_result.FORMAT_VERSION
         f.attrs["program_version"] = "0.1.0-test"
         f.attrs["status"] = status
+        f.attrs["scenario_name"] = "synthetic ribbon"
         f.create_dataset("/input/scenario", data=SCENARIO)
         if want("summary"):
             g = f.create_group("summary")
+            u = g.create_group("units")
             for k, v in SUMMARY.items():
                 g.attrs[k] = v
+                u.attrs[k] = hawser_result.layout_value("/summary", k)["units"]
             if failure:
                 g.attrs["failure_message"] = failure
+                u.attrs["failure_message"] = "text"
+        # The planet and material as the program writes them resolved (SI): R_M as given, and
+        # GM, Omega of WGS 84 (recalled from memory) giving the synchronous radius.
+        gm, om = 3.986004418e14, 7.292115e-5
+        planet = {"equatorial_radius_m": (R_M, "m"), "gm_m3_per_s2": (gm, "m^3/s^2"),
+                  "spin_rate_rad_per_s": (om, "rad/s"),
+                  "synchronous_altitude_m": ((gm / om ** 2) ** (1 / 3) - R_M, "m")}
+        material = {"ultimate_strength_pa": (50.0e9, "Pa"), "design_safety_factor": (2.0, "1")}
+        if want("planet"):
+            for group, values in (("planet", planet), ("material", material)):
+                g = f.create_group(group)
+                u = g.create_group("units")
+                for k, (v, unit) in values.items():
+                    g.attrs[k] = v
+                    u.attrs[k] = unit
         h = equilibrium()[:, 0] - R_M
         hm = 0.5 * (h[:-1] + h[1:])
         eq_tension = 1.0e5 * np.exp(-((hm - 3.6e7) / 3.0e7) ** 2)
@@ -222,21 +240,17 @@ def test_deflection_function():
     check("deflection unchanged by a rotation about the spin axis", err < 1e-6, f"{err} m")
 
 
-def test_scenario_reading():
-    for use in (True, False):
-        info = hawser_scenario.scenario_info(SCENARIO, use_pyyaml=use)
-        tag = "PyYAML" if use else "small reader"
-        check(f"scenario name ({tag})", info.name == "synthetic ribbon", info.name)
-        # "5000 km" in the scenario text above -> 5.0e6 m
-        check(f"planet radius with km suffix ({tag})", info.equatorial_radius_m == 5.0e6,
-              info.equatorial_radius_m)
-        # r_g = (GM/Omega^2)^(1/3), about 42,164 km with the WGS 84 constants (physics.md s.1)
-        rg = info.geostationary_radius_m()
-        check(f"geostationary radius ({tag})", rg is not None and abs(rg - 42164e3) < 1e3, rg)
-    # an unknown unit is not guessed (style.md: no silent physical defaults)
-    info = hawser_scenario.scenario_info("planet:\n  equatorial_radius: 5000 furlongs\n")
-    check("unknown unit gives no radius", info.equatorial_radius_m is None,
-          info.equatorial_radius_m)
+def test_planar_panels():
+    """A planar run (north-south exactly zero) gets no north-south panels; a 3-D run gets them."""
+    east, north, up = known_motion()
+    d3 = hawser_plots.Deflection(east, north, up)
+    d2 = hawser_plots.Deflection(east, np.zeros_like(north), up)
+    check("3-D motion: east-west and north-south panels",
+          len(hawser_plots.moving_components(d3)) == 2)
+    check("planar motion: the east-west panel only", len(hawser_plots.moving_components(d2)) == 1)
+    alt = (equilibrium()[:, 0] - R_M) / 1e3
+    fig = hawser_plots.deflection_history_figure(times(), d2, alt, [("top", NODES - 1)])
+    check("planar motion: the history figure has one axis", len(fig.axes) == 1, len(fig.axes))
 
 
 def test_full_report(tmp):
@@ -256,13 +270,23 @@ def test_full_report(tmp):
         check(f"caution contains '{phrase}'", phrase in text)
     check("caution comes before the figures", 0 <= text.find("certification") < text.find("<img"))
     for k, v in SUMMARY.items():
-        # the report prints reals with 6 significant digits, integers as they are (fmt())
+        # the table of every value as stored: reals with 6 significant digits, integers as
+        # they are (fmt()), the unit the file gives ("1" shown as nothing)
         shown = str(v) if isinstance(v, int) else f"{v:.6g}"
-        check(f"summary value {k} = {shown} shown",
-              f'[{k}]</td><td class="num">{shown}</td>' in text)
+        unit = hawser_result.layout_value("/summary", k)["units"]
+        unit = "" if unit == "1" else unit
+        check(f"summary value {k} = {shown} {unit} shown as stored",
+              f'<td>{k}</td><td class="num">{shown}</td><td class="unit">{unit}</td>' in text)
+    # the curated table: 123456 N shown as 123.456 kN (1 kN = 1000 N)
+    check("peak tension in kN at the top", 'data-key="peak_tension_n" data-file-units="N" '
+          'data-file-value="123456.0"><td>Peak tension</td><td class="num">123.456</td>'
+          '<td class="unit">kN</td>' in text)
+    check("its time, under an hour, in s", 'data-key="peak_tension_time_s" data-file-units="s" '
+          'data-file-value="1234.5"><td class="sub">when</td><td class="num">1234.5</td>'
+          '<td class="unit">s</td>' in text)
     check("status 'complete' shown", "Run status: complete" in text)
     check("scenario name in the title", "<h1>hawser report: synthetic ribbon</h1>" in text)
-    check("planet radius read from the scenario", "5e+06 m, from the scenario" in text)
+    check("planet radius read from /planet", "5e+06 m, from /planet in the result file" in text)
     # peaks recomputed from the recorded histories equal the synthetic motion's
     east, north, _ = known_motion()
     for name, values in (("east-west", east), ("north-south", north)):
@@ -275,7 +299,7 @@ def test_full_report(tmp):
     check("every figure embedded in the HTML", len(imgs) == len(FIGURES), len(imgs))
     if imgs:
         check("embedded image equals the PNG file",
-              base64.b64decode(imgs[0]) == (out / "tension.png").read_bytes())
+              base64.b64decode(imgs[0]) == (out / "safety_margins.png").read_bytes())
     check("self-contained (no external src/href)", not re.search(r'(src|href)="(?!data:)', text))
     check("scenario text present and escaped",
           "loads &lt; 1 kN &amp; &quot;quotes&quot;" in text and "loads < 1 kN" not in text)
@@ -348,7 +372,7 @@ def test_refused_files(tmp):
 def main():
     t0 = time.time()
     test_deflection_function()
-    test_scenario_reading()
+    test_planar_panels()
     with tempfile.TemporaryDirectory(prefix="hawser_report_test_") as d:
         tmp = Path(d)
         test_full_report(tmp)

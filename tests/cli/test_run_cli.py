@@ -66,7 +66,7 @@ TIME_SERIES = ["/time", "/nodes/position", "/nodes/velocity", "/elements/tension
 
 # /summary attributes the contract names (architecture.md: peak tension and where and when,
 # minimum safety factor, peak east-west and north-south deflections, solver statistics).
-SUMMARY_ATTRS = ["peak_tension_N", "peak_tension_element", "peak_tension_time_s", "min_safety_factor",
+SUMMARY_ATTRS = ["peak_tension_n", "peak_tension_element", "peak_tension_time_s", "min_safety_factor",
                  "peak_east_west_m", "peak_east_west_node", "peak_east_west_time_s", "peak_north_south_m",
                  "peak_north_south_node", "peak_north_south_time_s", "steps", "rhs_evals", "jac_evals",
                  "error_test_failures", "nonlinear_failures"]
@@ -135,7 +135,9 @@ def check_result_file(c, h, demo_path, design):
         # Root attributes (architecture.md, result file; status words from result_recorder.hpp).
         c.check(text_attr(f, "format") == "hawser-timehistory", "root format = hawser-timehistory",
                 repr(f.attrs.get("format")))
-        c.check(f.attrs.get("format_version") == 1, "root format_version = 1", repr(f.attrs.get("format_version")))
+        c.check(f.attrs.get("format_version") == 2,
+                "root format_version = 2 (config/result_layout.yaml)",
+                repr(f.attrs.get("format_version")))
         version = subprocess.run([h.exe, "--version"], capture_output=True, text=True).stdout.strip()
         c.check(bool(version) and text_attr(f, "program_version") == version.split()[-1],
                 "root program_version equals `hawser --version`", f"{f.attrs.get('program_version')!r} vs {version!r}")
@@ -234,10 +236,10 @@ def check_result_file(c, h, demo_path, design):
         if not missing:
             tension = f["/elements/tension"][:]
             it, ie = np.unravel_index(np.argmax(tension), tension.shape)
-            c.check(math.isclose(s["peak_tension_N"], tension[it, ie], rel_tol=1e-12)
+            c.check(math.isclose(s["peak_tension_n"], tension[it, ie], rel_tol=1e-12)
                     and s["peak_tension_element"] == ie and s["peak_tension_time_s"] == t[it],
                     "summary peak tension, element and time = those of /elements/tension",
-                    f"{s['peak_tension_N']} el {s['peak_tension_element']} t {s['peak_tension_time_s']} vs "
+                    f"{s['peak_tension_n']} el {s['peak_tension_element']} t {s['peak_tension_time_s']} vs "
                     f"{tension[it, ie]} el {ie} t {t[it]}")
             area = f["/mesh/element_area"][:]
             sf = np.min(design["ultimate_strength_pa"] * area / np.maximum(tension, 1e-300))

@@ -250,7 +250,7 @@ def check_kills(c, exe, demo, tmp, ref, rng, count):
 RTOL, ATOL_M = 1.0e-6, 1.0e-3
 TIGHTER = ["--set", "simulation.rtol=1e-7", "--set", "simulation.atol_position=1e-4",
            "--set", "simulation.atol_velocity=1e-5"]
-SUMMARY_FIGURES = ["peak_east_west_m", "peak_tension_N", "min_safety_factor"]
+SUMMARY_FIGURES = ["peak_east_west_m", "peak_tension_n", "min_safety_factor"]
 
 
 def wrms(diff, u_ref):

@@ -42,7 +42,7 @@ def main():
             c.check(os.path.exists(os.path.join(out, "report", "variants", i, "report.html")),
                     f"{i}: its own report exists")
         # min_safety_factor and peak_east_west_m (ranking, limit), peak_north_south_m and
-        # peak_tension_N (standard), each against the two varied keys.
+        # peak_tension_n (standard), each against the two varied keys.
         imgs = page.count("<img ")
         pngs = [f for f in os.listdir(os.path.join(out, "report")) if f.endswith(".png")]
         c.check(imgs == 8 and len(pngs) == 8, "eight comparison figures, embedded and as PNG files",

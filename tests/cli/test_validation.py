@@ -10,6 +10,7 @@ import os
 import subprocess
 import sys
 import tempfile
+import time
 
 import h5py
 import yaml
@@ -106,6 +107,37 @@ def main():
         t = mutate(GOOD, "  safety_factor: 2\n", "  safety_factor: 2\n  colour: blue\n")
         r.case("unknown key", t, [(line_of(t, "colour"), "tether.colour", ["unknown key"])])
 
+        # A dotted key in the file once named the nested key and silently overrode it.
+        t = GOOD + "mesh.elements: 7\n"
+        r.case("dotted key in the file", t, [(line_of(t, "mesh.elements"), "mesh.elements", ["one word", "nested"])])
+
+        # A second YAML document was once ignored.
+        t = GOOD + "---\nname: second document\n"
+        r.case("two documents", t, [(line_of(t, "second document"), "(syntax)", ["one YAML document", "holds 2"])])
+
+        # A key with no value was reported as "got a list".
+        t = mutate(GOOD, "  safety_factor: 2\n", "  safety_factor:\n")
+        r.case("null value", t, [(line_of(t, "safety_factor"), "tether.safety_factor", ["got nothing (null)"])])
+
+        # Text that is not UTF-8 was once accepted, and broke h5py's decoding of the attribute
+        # (RFC 3629: 0xFF never occurs in UTF-8). Written as Latin-1 so the byte stays raw.
+        t = mutate(GOOD, "name: validation base case", "name: caf\u00e9 \u00ff")
+        path = os.path.join(tmp, "latin1_name.yaml")
+        with open(path, "w", encoding="latin-1") as f:
+            f.write(t)
+        p = r.run("check", path)
+        ok = p.returncode == 2 and f"{path}:1:" in p.stderr and "not valid UTF-8" in p.stderr
+        r.passed += ok
+        r.failed += not ok
+        print(("ok   " if ok else "FAIL ") + f"name not in UTF-8: exit {p.returncode}, {p.stderr.strip()}")
+        path = os.path.join(tmp, "utf8_name.yaml")
+        with open(path, "w", encoding="utf-8") as f:
+            f.write(t)
+        p = r.run("check", path)
+        r.passed += p.returncode == 0
+        r.failed += p.returncode != 0
+        print(("ok   " if p.returncode == 0 else "FAIL ") + f"the same name in UTF-8 passes: {p.stderr.strip()}")
+
         t = mutate(GOOD, "  youngs_modulus: 630 GPa\n", "")
         r.case("missing physical property", t, [(line_of(t, "material:"), "material.youngs_modulus", ["missing"])])
 
@@ -166,6 +198,13 @@ def main():
         demo = os.path.join(a.source, "scenarios", "demo.yaml")
         for setting, words in (("climbers[3].mass=30 t", "there is no [3]"),
                                ("climbers[x].mass=30 t", "list index is written"),
+                               # a trailing dot was once taken for the key before it
+                               ("tether.safety_factor.=3", "empty key in the path"),
+                               # an index past 64 bits once gave "error: stoul" and exit 1
+                               ("climbers[99999999999999999999].mass=1 t", "too large"),
+                               # a key the --set creates is located on the command line, not at
+                               # the scenario's line 1
+                               ("colour.shade=red", "unknown key"),
                                ("mesh[0]=3", "mesh is not a list"),
                                # a climber's drag needs air (the demo has no atmosphere)
                                ("climbers[0].drag={area: 4 m^2, cd: 1.1}", "needs air")):
@@ -174,6 +213,19 @@ def main():
             r.passed += ok
             r.failed += not ok
             print(("ok  " if ok else "FAIL") + f" --set {setting}: exit {p.returncode}, {p.stderr.strip()}")
+        # A path of 60,000 parts once overflowed the stack (and took minutes): refused at once,
+        # with a message of bounded length (key paths have at most 32 parts, --set at most
+        # 4096 characters: solver/input/scenario_reader.cpp).
+        for setting in ("a." * 60000 + "b=1", "a." * 1000 + "b=1"):
+            t0 = time.monotonic()
+            p = r.run("check", demo, "--set", setting)
+            took = time.monotonic() - t0
+            ok = p.returncode == 2 and len(p.stderr) < 10000 and took < 10 and \
+                ("at most 32 parts" in p.stderr or "longer than 4096" in p.stderr)
+            r.passed += ok
+            r.failed += not ok
+            print(("ok  " if ok else "FAIL") + f" --set of {len(setting)} characters: exit "
+                  f"{p.returncode} in {took:.2f} s, {p.stderr.strip()[:160]}")
         # ... and a valid one takes effect: the scenario as run (/input/scenario) carries it.
         out = os.path.join(tmp, "set_item.h5")
         p = r.run("run", demo, "-o", out, "--set", "climbers[0].mass=30 t", "--set", "simulation.duration=1 min")

@@ -58,7 +58,7 @@ double measured_string_frequency_hz(int n, int elements, const std::string& meth
   s.rtol = 1e-8;
   s.initial_yaml = sine_mode_displacements("east", n, 1e-4, kStringL);
   const auto r = run_bench(s);
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   std::vector<double> phi;
   for (std::size_t k = 0; k < r->nodes(); ++k) phi.push_back(std::sin(n * pi * r->x(k) / kStringL));
   return crossing_frequency_hz(r->sink.t, modal_coordinate(*r, east, phi));
@@ -120,7 +120,7 @@ std::unique_ptr<BenchRun> run_bar_mode(int n, double damping_time_s, double peri
   for (int i = 0; i <= elements; ++i) speed.push_back(amplitude * omega * std::sin(k * kBarL * i / elements));
   s.initial_yaml = kick_entries(along, speed, 1, elements);
   auto r = run_bench(s);
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   REQUIRE(r->summary.max_slack_elements == 0);  // stayed taut: the linear bar it models
   return r;
 }
@@ -194,7 +194,7 @@ TEST_CASE("hanging chain: first three lateral frequencies", "[bench]") {
     for (int k = 0; k <= elements; ++k) speed.push_back(amplitude * omega * shape(length * k / elements));
     s.initial_yaml = kick_entries(east, speed, 1, elements);
     const auto r = run_bench(s);
-    REQUIRE(r->summary.status == "complete");
+    REQUIRE(r->summary.status == RunStatus::complete);
     std::vector<double> phi;
     for (std::size_t k = 0; k < r->nodes(); ++k) phi.push_back(shape(r->x(k)));
     const double measured = 2.0 * pi * crossing_frequency_hz(r->sink.t, modal_coordinate(*r, east, phi));
@@ -262,7 +262,7 @@ TEST_CASE("wave speeds from pulse arrival times", "[bench]") {
   };
   auto arrivals = [&](const BenchSpec& s, int axis) {
     const auto r = run_bench(s);
-    REQUIRE(r->summary.status == "complete");
+    REQUIRE(r->summary.status == RunStatus::complete);
     REQUIRE(r->summary.max_slack_elements == 0);
     REQUIRE(r->x(node1) == Approx(x1));
     REQUIRE(r->x(node2) == Approx(x2));

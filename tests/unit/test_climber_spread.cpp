@@ -246,7 +246,7 @@ TransitPeaks short_transit(const std::string& load, int elements, const std::str
               "simulation.duration=8 h", "simulation.output_interval=5 min", "simulation.atol_velocity=1e-4",
               "climbers=[{name: c, mass: 20 t, from: 0 km, to: 3000 km, direction: up, cruise_speed: 200 km/h, "
               "acceleration: 0.5, deceleration: 0.5}]"}));
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   const std::vector<double> alt = reference_distance(r->model.mesh);
   std::size_t nodes[3];
   const double targets[2] = {1000e3, 10000e3};
@@ -323,7 +323,7 @@ const std::string kString =
 /// Largest |W - (E - E0)| over the run, relative to the largest drive work W.
 double energy_mismatch(const std::string& load) {
   const auto r = run(load_scenario_text(kString, "string.yaml", {"mesh.climber_load=" + load}));
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   auto energy = [](const TetherDiagnostics& d) { return d.kinetic_j + d.potential_j + d.strain_j + d.climber_j; };
   const double e0 = energy(r->sink.d.front());
   double work = 0.0, worst = 0.0;

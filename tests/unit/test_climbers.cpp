@@ -39,7 +39,7 @@ std::string number(double v) {
 }
 
 /// One climber entry of the `climbers:` list, in flow YAML (SI numbers unless a unit is given).
-struct ClimberSpec {
+struct CaseClimber {
   std::string name = "c";
   std::string mass = "20000";
   std::string from = "0", to = "1000 km", direction = "up";
@@ -53,7 +53,7 @@ struct ClimberSpec {
   }
 };
 
-std::string climbers_override(const std::vector<ClimberSpec>& cs) {
+std::string climbers_override(const std::vector<CaseClimber>& cs) {
   std::string s = "climbers=[";
   for (std::size_t i = 0; i < cs.size(); ++i) s += (i ? ", " : "") + cs[i].yaml();
   return s + "]";
@@ -61,7 +61,7 @@ std::string climbers_override(const std::vector<ClimberSpec>& cs) {
 
 /// A small planet tether: the demo's design on `elements` elements graded from `first`, at
 /// rest (no initial displacement), with the given climbers and simulation settings.
-std::vector<std::string> small_tether(int elements, const std::string& first, const std::vector<ClimberSpec>& cs,
+std::vector<std::string> small_tether(int elements, const std::string& first, const std::vector<CaseClimber>& cs,
                                       std::vector<std::string> more) {
   std::vector<std::string> o{"mesh.elements=" + std::to_string(elements), "mesh.grading=geometric",
                              "mesh.first_element_length=" + first, "initial.displacements=[]",
@@ -299,7 +299,7 @@ TEST_CASE("at cruise the Coriolis force is 2 m Omega v: westward going up, eastw
   const double m = 500.0, v = 200 * kKmh;
   for (const char* dir : {"up", "down"}) {
     const bool up = std::string(dir) == "up";
-    ClimberSpec c;
+    CaseClimber c;
     c.mass = number(m);
     c.direction = dir;
     c.from = up ? "500 km" : "1500 km";
@@ -308,7 +308,7 @@ TEST_CASE("at cruise the Coriolis force is 2 m Omega v: westward going up, eastw
                                                                               "simulation.output_interval=30 min",
                                                                               "simulation.atol_velocity=1e-4"}));
     const auto r = run(sc);
-    REQUIRE(r->summary.status == "complete");
+    REQUIRE(r->summary.status == RunStatus::complete);
     const std::size_t i = output_at(*r, 3600.0);
     const ClimberSample cs = sample(*r, 0, i);
     // Cruising: 1 h is past the 111 s ramp and before the 5 h arrival.
@@ -411,7 +411,7 @@ TEST_CASE("a climber parked on a node is that node with the climber's mass added
   for (const char* dir : {"up", "down"}) {
     // Model A: a climber parked exactly at node k's altitude until long after the run, facing
     // up (it sits on element k at xi = 0) or down (element k-1 at xi = 1).
-    ClimberSpec c;
+    CaseClimber c;
     c.mass = number(m);
     c.from = number(altitude_k);
     c.direction = dir;
@@ -482,8 +482,8 @@ TEST_CASE("a climber parked on a node is that node with the climber's mass added
     };
     testing::MemorySink sa, sb;
     const RunSummary ra = run_of(sys_a, sa), rb = run_of(sys_b, sb);
-    REQUIRE(ra.status == "complete");
-    REQUIRE(rb.status == "complete");
+    REQUIRE(ra.status == RunStatus::complete);
+    REQUIRE(rb.status == RunStatus::complete);
     REQUIRE(sa.x.size() == sb.x.size());
     double worst = 0.0, largest = 0.0;
     for (std::size_t i = 0; i < sa.x.size(); ++i) {
@@ -520,7 +520,7 @@ TEST_CASE("a climber raised slowly gains m Omega (r2^2 - r1^2), paid by the anch
   // climber stays above element 0 (the anchor-torque quadrature sees element 0's pull only).
   // Material damping (retardation time 1 s) lets the tether settle after the climb.
   const double m = 5000.0;
-  ClimberSpec c;
+  CaseClimber c;
   c.mass = number(m);
   c.from = "300 km";
   c.to = "2300 km";
@@ -532,7 +532,7 @@ TEST_CASE("a climber raised slowly gains m Omega (r2^2 - r1^2), paid by the anch
                                                          "material.damping_time=1 s", "simulation.rtol=1e-8",
                                                          "simulation.atol_position=1e-4", "simulation.atol_velocity=1e-6"}));
   const auto r = run(sc);
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   const std::size_t last = r->sink.t.size() - 1;
   REQUIRE(r->model.climbers->climbers()[0].profile.end_time() < r->sink.t[last] - 3600.0);  // parked for the last hour
   const double rho1 = climber_rho(*r, 0, 0), rho2 = climber_rho(*r, 0, last);
@@ -556,7 +556,7 @@ TEST_CASE("the drive's work is the change of the climber's and the tether's ener
   // drive's, whose power R . (xi' d) is integrated along the run (drive_work_j); so
   // W(t) = E(t) - E(0), with E the tether's kinetic + potential + strain energy plus the
   // climbers' kinetic + potential energy.
-  ClimberSpec c;
+  CaseClimber c;
   c.mass = "5000";
   c.from = "300 km";
   c.to = "1500 km";
@@ -565,7 +565,7 @@ TEST_CASE("the drive's work is the change of the climber's and the tether's ener
                                                          "material.damping_time=0", "simulation.rtol=1e-8",
                                                          "simulation.atol_position=1e-4", "simulation.atol_velocity=1e-6"}));
   const auto r = run(sc);
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   auto energy = [](const TetherDiagnostics& d) { return d.kinetic_j + d.potential_j + d.strain_j + d.climber_j; };
   const double e0 = energy(r->sink.d.front());
   double largest = 0.0, worst = 0.0;
@@ -605,7 +605,7 @@ TEST_CASE("between node crossings the drive's work is the energy change, on a vi
       "climbers: [{name: bead, mass: 0.002, from: 0.6, to: 9.4, direction: up, cruise_speed: 19, acceleration: 2000, "
       "deceleration: 2000}]\n";
   const auto r = run(load_scenario_text(text, "string.yaml", {}));
-  REQUIRE(r->summary.status == "complete");
+  REQUIRE(r->summary.status == RunStatus::complete);
   auto balance = [](const TetherDiagnostics& d) {
     return d.drive_work_j - (d.kinetic_j + d.potential_j + d.strain_j + d.climber_j);
   };
@@ -653,7 +653,7 @@ TEST_CASE("with climbers the mass solve and the structured Newton solver are exa
   // the climbers' coupling through M^-1 (tether_system.cpp says so), hence the differences.
   // Two climbers share element 1 (a cluster: the tridiagonal path of the mass solve), a
   // third rides element 5 alone, all moving at t = 1 h; damping exercises dF/dv.
-  std::vector<ClimberSpec> cs(3);
+  std::vector<CaseClimber> cs(3);
   cs[0].name = "a", cs[0].from = "12000 km", cs[0].to = "20000 km", cs[0].mass = "20000";
   cs[1].name = "b", cs[1].from = "14000 km", cs[1].to = "22000 km", cs[1].mass = "7000";
   cs[2].name = "c", cs[2].from = "65000 km", cs[2].to = "58000 km", cs[2].direction = "down", cs[2].mass = "12000";
@@ -757,7 +757,7 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
   }());
   const std::vector<double> alt = reference_distance(build_model(plain).mesh);  // node altitudes [m]
   SECTION("a dwell exactly on a node, the end exactly on another") {
-    ClimberSpec c;
+    CaseClimber c;
     c.mass = "10000";
     c.from = "30 km";
     c.to = number(alt[12]);
@@ -774,7 +774,7 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
     o.back() = "simulation.duration=" + number(p.end_time() + 1800.0);
     const auto r = run(load_scenario(kDemo, o));
     INFO(r->summary.message << "; " << r->summary.stats.steps << " steps, " << r->wall_s << " s");
-    CHECK(r->summary.status == "complete");
+    CHECK(r->summary.status == RunStatus::complete);
     // Resting on node 6 during the dwell and on node 12 at the end.
     const std::vector<double>& s0 = r->model.equilibrium.s0_m;
     double arrival = -1.0;  // the start of the dwell: the segment boundary after which it rests mid-way
@@ -791,7 +791,7 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
     CHECK((sample(*r, 0, last).r - r->sink.x[last].col(12)).norm() < 1e-6);
   }
   SECTION("dozens of node crossings") {
-    ClimberSpec c;
+    CaseClimber c;
     c.mass = "10000";
     c.from = "5 km";
     c.to = "2500 km";
@@ -806,11 +806,11 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
     INFO(crossings << " crossings; " << r->summary.message << "; " << r->summary.stats.steps << " steps, " << r->wall_s
                    << " s");
     CHECK(crossings >= 20);
-    CHECK(r->summary.status == "complete");
+    CHECK(r->summary.status == RunStatus::complete);
     CHECK(sample(*r, 0, r->sink.t.size() - 1).s_m == Approx(r->model.climbers->climbers()[0].profile.to()));
   }
   SECTION("two climbers on one element") {
-    std::vector<ClimberSpec> cs(2);
+    std::vector<CaseClimber> cs(2);
     cs[0].name = "lead", cs[0].from = "160 km", cs[0].to = "900 km", cs[0].mass = "8000";
     cs[1].name = "tail", cs[1].from = "150 km", cs[1].to = "890 km", cs[1].mass = "12000";
     auto o = mesh;
@@ -826,7 +826,7 @@ TEST_CASE("stops on nodes, many crossings and a cluster of climbers run without 
     INFO(shared << " of 240 minutes on one element; " << r->summary.message << "; " << r->summary.stats.steps
                 << " steps, " << r->wall_s << " s");
     CHECK(shared > 120);
-    CHECK(r->summary.status == "complete");
+    CHECK(r->summary.status == RunStatus::complete);
   }
 }
 
@@ -841,7 +841,7 @@ const Run& standard_transit(int n) {
   static std::map<int, std::unique_ptr<Run>> cache;
   auto& r = cache[n];
   if (!r) {
-    ClimberSpec c;
+    CaseClimber c;
     c.name = "kite";
     c.mass = "20 t";
     c.from = "0 km";
@@ -867,7 +867,7 @@ TEST_CASE("a climber leaving the anchor: the tether drops and swings", "[climber
   // the whole tether and the eastward swing that follows through Coriolis coupling are real
   // effects the results must show".
   const Run& r = standard_transit(50);
-  REQUIRE(r.summary.status == "complete");
+  REQUIRE(r.summary.status == RunStatus::complete);
   // At t = 0 the climber sits on the anchor (node 0, prescribed): its weight is the anchor's,
   // and the starting equilibrium is that of the unloaded tether, exactly.
   auto opts = std::vector<std::string>{"mesh.elements=50", "mesh.grading=geometric", "mesh.first_element_length=80 km",
@@ -917,8 +917,8 @@ TEST_CASE("the peak east-west offset of the standard transit converges with the 
 
 TEST_CASE("the peak east-west offset converges at the demo's mesh, N = 200 and 400", "[climber][convergence][long]") {
   const Run &a = standard_transit(200), &b = standard_transit(400);
-  REQUIRE(a.summary.status == "complete");
-  REQUIRE(b.summary.status == "complete");
+  REQUIRE(a.summary.status == RunStatus::complete);
+  REQUIRE(b.summary.status == RunStatus::complete);
   const double p200 = peak_offset(a), p400 = peak_offset(b);
   INFO("peak east-west offset " << p200 << " m at N = 200 (" << a.wall_s << " s), " << p400 << " m at N = 400 ("
                                 << b.wall_s << " s)");
@@ -932,7 +932,7 @@ TEST_CASE("scenarios/traffic.yaml: its schedule expands and a shortened run comp
   const std::string path = std::string(HAWSER_SOURCE_DIR) + "/scenarios/traffic.yaml";
   const auto r = run(load_scenario(path, {"simulation.duration=2 h", "mesh.elements=30"}));
   INFO(r->summary.message);
-  CHECK(r->summary.status == "complete");
+  CHECK(r->summary.status == RunStatus::complete);
   const std::vector<Climber>& cs = r->model.climbers->climbers();
   REQUIRE(cs.size() == 6);
   const double masses[] = {5000.0, 4000.0, 6000.0};

@@ -175,8 +175,9 @@ TEST_CASE("every scenario in scenarios/ and every config entry loads", "[design]
   const std::string bench =
       "field: {kind: uniform, gravity: 0, cable_length: 10 m, cable_area: 1 mm^2, far_end: free}\n"
       "mesh: {elements: 4}\n";
-  for (const char* mat : {"steel_4340", "aluminium_7075_t6", "titanium_6al4v", "aramid_kevlar49", "pbo_zylon_hm",
-                          "uhmwpe_dyneema_sk75", "carbon_t1000g", "kestrel_k50", "kestrel_k63", "kestrel_k100"}) {
+  for (const char* mat : {"steel_4340", "aluminium_7075_t6", "titanium_6al4v", "aramid_high_modulus",
+                          "pbo_fibre", "uhmwpe_fibre", "carbon_intermediate_modulus", "kestrel_k50",
+                          "kestrel_k63", "kestrel_k100"}) {
     INFO(mat);
     const Scenario s = load_scenario_text(bench + "material: " + mat + "\n", "bench.yaml", {});
     CHECK(s.material.density_kg_m3 > 0);

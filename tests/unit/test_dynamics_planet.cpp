@@ -30,7 +30,7 @@ TEST_CASE("equilibrium holds for a simulated day", "[dynamics]") {
   testing::MemorySink sink;
   TetherModel model;
   const RunSummary s = run(sc, sink, model);
-  REQUIRE(s.status == "complete");
+  REQUIRE(s.status == RunStatus::complete);
   const double length = (model.mesh.position.col(model.nodes() - 1) - model.mesh.position.col(0)).norm();
   double worst = 0.0;
   for (const auto& x : sink.x) worst = std::max(worst, (x - model.mesh.position).cwiseAbs().maxCoeff());
@@ -58,7 +58,7 @@ EnergyDrift energy_drift(const std::string& rtol, const std::string& method) {
   sink.keep_states = false;
   TetherModel model;
   const RunSummary s = run(sc, sink, model);
-  REQUIRE(s.status == "complete");
+  REQUIRE(s.status == RunStatus::complete);
   TetherSystem sys(model);
   const std::vector<double> at_rest(sys.size(), 0.0);
   const double h_eq = jacobi(sys.diagnose(0.0, at_rest.data()));
@@ -97,7 +97,7 @@ TEST_CASE("angular momentum about the spin axis changes only by the anchor's tor
   sink.keep_states = false;
   TetherModel model;
   const RunSummary s = run(sc, sink, model);
-  REQUIRE(s.status == "complete");
+  REQUIRE(s.status == RunStatus::complete);
   double largest_change = 0.0, worst_mismatch = 0.0;
   for (const auto& d : sink.d) {
     const double change = d.angular_momentum_z - sink.d.front().angular_momentum_z;

@@ -1,4 +1,4 @@
-// The environment in time-domain runs (issue 5, items 5-9): drag of the wind, tides of the Moon
+// The environment in time-domain runs: drag of the wind, tides of the Moon
 // and the Sun, J2, cuts and strikes, and the keys that set them up. Every check value names
 // its source.
 #include "catch_compat.hpp"
@@ -174,7 +174,7 @@ TEST_CASE("a steady cross wind leans a hanging cable to the straight-line angle"
   testing::MemorySink sink;
   TetherModel model;
   const RunSummary s = run(sc, sink, model);
-  REQUIRE(s.status == "complete");
+  REQUIRE(s.status == RunStatus::complete);
   const Matrix3X& x = sink.x.back();
   const std::size_t n = model.nodes() - 1;
   double worst_element = 0.0;
@@ -236,7 +236,7 @@ TEST_CASE("drag on a planet node: density of the 1976 standard and the wind's EN
   const auto fields = drag->output_fields(nodes);
   REQUIRE(fields.size() == 4);
   CHECK(fields[0].path == "/environment/wind");
-  CHECK(fields[3].summary_peak == "peak_aerodynamic_load_N_per_m");
+  CHECK(fields[3].summary_peak == "peak_aerodynamic_load_n_per_m");
   std::vector<std::vector<double>> rows(fields.size());
   drag->sample_outputs(s, nodes, rows);
   REQUIRE(rows[0].size() == 9);
@@ -333,8 +333,9 @@ TEST_CASE("the anchor longitude orients the tide bodies in the rotating frame", 
   // the anchor's longitude, at phase 0 on an equatorial orbit, is straight overhead (+x) at t = 0;
   // 90 deg further east along the equator it is at +y (east). Orbit radius 384,400 km (the
   // data's, models/third_body_tide.cpp).
+  const double anchor_deg = load_scenario(kDemo, {}).anchor.longitude_rad * 180.0 / M_PI;
   for (double extra_deg : {0.0, 90.0}) {
-    const std::string lon = std::to_string(-160.0 + extra_deg) + " deg";
+    const std::string lon = std::to_string(anchor_deg + extra_deg) + " deg";
     const Scenario sc = load_scenario(kDemo, {"climbers=[]", "mesh.elements=10", "environment.tides.moon=true",
                                               "environment.tides.moon_inclination=0 deg",
                                               "environment.tides.moon_node_longitude=" + lon});
@@ -377,7 +378,7 @@ TEST_CASE("a tether's longitudinal response to the Moon peaks at the semi-diurna
   testing::MemorySink sink;
   TetherModel model;
   const RunSummary s = run(sc, sink, model);
-  REQUIRE(s.status == "complete");
+  REQUIRE(s.status == RunStatus::complete);
   const std::size_t top = model.nodes() - 1;
   std::vector<double> t, u;
   for (std::size_t i = 0; i < sink.t.size(); ++i)
@@ -431,7 +432,7 @@ TEST_CASE("with J2 the J2 equilibrium stays put, and without J2 it does not", "[
                                             "mesh.elements=40", "initial.displacements=[]", "model.j2=true"});
   testing::MemorySink sink;
   TetherModel model;
-  REQUIRE(run(sc, sink, model).status == "complete");
+  REQUIRE(run(sc, sink, model).status == RunStatus::complete);
   const double length = model.mesh.position(0, static_cast<Eigen::Index>(model.nodes() - 1)) - model.mesh.position(0, 0);
   double worst = 0.0;
   for (const auto& x : sink.x) worst = std::max(worst, (x - model.mesh.position).cwiseAbs().maxCoeff());
@@ -442,7 +443,7 @@ TEST_CASE("with J2 the J2 equilibrium stays put, and without J2 it does not", "[
   testing::MemorySink sink2;
   TetherSystem sys(wrong);
   REQUIRE(run_simulation(sys, initial_state(sys, sc.initial), run_options(sc.simulation, sys.layout()), sink2).status ==
-          "complete");
+          RunStatus::complete);
   double drift = 0.0;
   for (const auto& x : sink2.x) drift = std::max(drift, (x - wrong.mesh.position).cwiseAbs().maxCoeff());
   INFO("with J2: " << worst << " m; J2 equilibrium without J2: " << drift << " m");
@@ -473,8 +474,8 @@ TEST_CASE("a cut changes no momentum at its instant, then the upper part rises a
   const Scenario twin_sc = with({});
   testing::MemorySink cut, twin;
   TetherModel cm, tm;
-  REQUIRE(run(cut_sc, cut, cm).status == "complete");
-  REQUIRE(run(twin_sc, twin, tm).status == "complete");
+  REQUIRE(run(cut_sc, cut, cm).status == RunStatus::complete);
+  REQUIRE(run(twin_sc, twin, tm).status == RunStatus::complete);
   const std::size_t e = 12;  // 31,000 km lies in element 12 (30,000-32,500 km) of 40 uniform
   REQUIRE(cm.bars->cut_time(e) == 60.0);
   const double omega = cm.spin_rate_rad_s;
@@ -505,7 +506,7 @@ TEST_CASE("a cut changes no momentum at its instant, then the upper part rises a
                                                "events.cuts=[{altitude: 31000 km, time: 60}]"});
   testing::MemorySink ls;
   TetherModel lm;
-  REQUIRE(run(later, ls, lm).status == "complete");
+  REQUIRE(run(later, ls, lm).status == RunStatus::complete);
   auto radial_velocity = [&](std::size_t a, std::size_t b) {  // mass-weighted mean, rotating frame
     double mv = 0.0, mm = 0.0;
     for (std::size_t k = a; k <= b; ++k) {
@@ -546,7 +547,7 @@ TEST_CASE("a strike adds exactly m dv of momentum", "[environment][events]") {
   const Scenario sc = load_scenario_text(text, "strike.yaml", {});
   testing::MemorySink sink;
   TetherModel model;
-  REQUIRE(run(sc, sink, model).status == "complete");
+  REQUIRE(run(sc, sink, model).status == RunStatus::complete);
   const double m = model.mesh.node_mass[20];
   const Eigen::Vector3d expect = m * Eigen::Vector3d(0.3, 0.4, -0.2);
   double worst = 0.0, before = 0.0;
@@ -665,7 +666,7 @@ TEST_CASE("the storm and cut scenarios load and run, shortened", "[environment][
     sink.keep_states = false;
     TetherModel model;
     const RunSummary s = run(sc, sink, model);
-    CHECK(s.status == "complete");
+    CHECK(s.status == RunStatus::complete);
   }
   const TetherModel storm = build_model(load_scenario(kStorm, {}));
   CHECK(find_model<AerodynamicDrag>(storm));
@@ -721,7 +722,7 @@ TEST_CASE("a climber in the wind: its drag leans the cable above it to the stati
   testing::MemorySink sink;
   TetherModel model;
   const RunSummary s = run(sc, sink, model);
-  REQUIRE(s.status == "complete");
+  REQUIRE(s.status == RunStatus::complete);
   Matrix3X mean = Matrix3X::Zero(3, sink.x.back().cols());
   int count = 0;
   for (std::size_t k = 0; k < sink.t.size(); ++k)
@@ -745,7 +746,7 @@ TEST_CASE("a climber in the wind: its drag leans the cable above it to the stati
   const Scenario calm = load_scenario_text(hanging_with_climber(M, area, cd, u, rho_air, false), "no_drag.yaml", {});
   testing::MemorySink sink2;
   TetherModel model2;
-  REQUIRE(run(calm, sink2, model2).status == "complete");
+  REQUIRE(run(calm, sink2, model2).status == RunStatus::complete);
   CHECK(sink2.x.back().row(1).cwiseAbs().maxCoeff() < 1e-9);
 }
 

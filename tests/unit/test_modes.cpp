@@ -87,7 +87,7 @@ CheckRun check_run(const Scenario& sc, std::size_t mode_index, double amplitude_
   ro.output_interval_s = mode.period_s / 200.0;
   testing::MemorySink sink;
   const RunSummary s = run_simulation(sys, y0, ro, sink);
-  REQUIRE(s.status == "complete");
+  REQUIRE(s.status == RunStatus::complete);
   const int axis = static_cast<int>(mode.kind);
   const int other = axis == 2 ? 1 : 2;  // the lateral axis not in the mode (x-y couple by Coriolis)
   std::vector<double> u;

@@ -48,7 +48,7 @@ TEST_CASE("a run resumed at the time of a strike still takes the strike", "[resu
   RunOptions opt = run_options(sc.simulation, sys.layout());
   opt.flush.every_outputs = 1;  // a checkpoint at every output
   CheckpointSink whole;
-  REQUIRE(run_simulation(sys, initial_state(sys, sc.initial), opt, whole).status == "complete");
+  REQUIRE(run_simulation(sys, initial_state(sys, sc.initial), opt, whole).status == RunStatus::complete);
   const Eigen::Vector3d expect = model.mesh.node_mass[20] * Eigen::Vector3d(0.3, 0.4, -0.2);
   REQUIRE((momentum(model, whole, whole.t.size() - 1) - expect).norm() < 1e-9 * expect.norm());
 
@@ -62,7 +62,7 @@ TEST_CASE("a run resumed at the time of a strike still takes the strike", "[resu
     again.resume = &*c;
     CheckpointSink rest;
     const RunSummary s = run_simulation(sys, {}, again, rest);
-    REQUIRE(s.status == "complete");
+    REQUIRE(s.status == RunStatus::complete);
     // The outputs continue where the checkpoint left them, and the summary counts them all.
     REQUIRE(!rest.t.empty());
     CHECK(rest.t.front() == Approx(t_resume + 0.00025).epsilon(1e-12));

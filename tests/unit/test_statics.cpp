@@ -280,7 +280,7 @@ TEST_CASE("a run started in the loaded static state stays there", "[statics][dyn
   TetherSystem sys(model);
   const RunSummary s = run_simulation(sys, initial_state(sys, sc.initial),
                                       run_options(sc.simulation, sys.layout()), sink);
-  REQUIRE(s.status == "complete");
+  REQUIRE(s.status == RunStatus::complete);
   REQUIRE(model.equilibrium.newton_iterations > 0);  // it was a loaded state
   const double length =
       (model.mesh.position.col(model.nodes() - 1) - model.mesh.position.col(0)).norm();

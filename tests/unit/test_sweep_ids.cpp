@@ -8,7 +8,7 @@
 #include "catch_compat.hpp"
 
 #include "solver/cli/slurm_array.hpp"
-#include "solver/cli/variant_id.hpp"
+#include "solver/input/variant_id.hpp"
 
 using namespace hawser;
 

@@ -1,4 +1,4 @@
-#include "solver/cli/variant_id.hpp"
+#include "solver/input/variant_id.hpp"
 
 #include <cctype>
 #include <cstdio>

@@ -7,7 +7,7 @@
 #include <string>
 #include <vector>
 
-#include "solver/cli/study.hpp"
+#include "solver/input/study.hpp"
 
 namespace hawser {
 

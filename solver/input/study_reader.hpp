@@ -5,7 +5,7 @@
 // file:line:column and the key path; InputError (exit 2) if there is any, before anything runs.
 #include <string>
 
-#include "solver/cli/study.hpp"
+#include "solver/input/study.hpp"
 
 namespace hawser {
 

@@ -1,4 +1,4 @@
-#include "solver/cli/study_reader.hpp"
+#include "solver/input/study_reader.hpp"
 
 #include <yaml-cpp/yaml.h>
 
@@ -15,8 +15,7 @@
 #include "solver/input/key_reference.hpp"
 #include "solver/input/scenario.hpp"
 #include "solver/input/scenario_reader.hpp"
-#include "solver/assembly/tether_model.hpp"
-#include "solver/cli/variant_id.hpp"
+#include "solver/input/variant_id.hpp"
 
 namespace hawser {
 namespace {
@@ -96,18 +95,18 @@ class StudyWalker {
 
   void check_value(const KeySpec& spec, const YAML::Node& node, const std::string& display) {
     const KeyReference& ref = study_keys();
-    if (spec.type == "list") {
+    if (spec.type == KeyType::list) {
       if (!node.IsSequence())
         return problem(at(node), display, "expected a list (- item per line)");
       for (std::size_t i = 0; i < node.size(); ++i) {
         const std::string d = display + "[" + std::to_string(i) + "]";
         const KeySpec* item = ref.find(spec.path + "[]");
-        if (item && item->type == "map" && ref.children(item->path).empty())
+        if (item && item->type == KeyType::map && ref.children(item->path).empty())
           check_overrides(node[i], d, false);
         else
           check_map(node[i], spec.path + "[]", d);
       }
-    } else if (spec.type == "map") {
+    } else if (spec.type == KeyType::map) {
       if (ref.children(spec.path).empty())
         check_overrides(node, display,
                         spec.path == "set" || spec.path.find("[].set") != std::string::npos);
@@ -115,7 +114,7 @@ class StudyWalker {
         check_map(node, spec.path, display);
     } else if (!node.IsScalar()) {
       problem(at(node), display, "expected a single value");
-    } else if (spec.type == "choice") {
+    } else if (spec.type == KeyType::choice) {
       std::string list;
       bool ok = false;
       for (const auto& c : spec.choices) {
@@ -301,12 +300,12 @@ void read_ranking(const YAML::Node& root, Study& st, StudyWalker& w) {
   }
 }
 
-/// Validates a variant as `hawser check BASE --set ...` would (the keys, then the model: a
+/// Validates a variant as `hawser check BASE --set ...` would (the whole validation stage: a
 /// climber beyond the tether's top is found here, not in the run), and rewrites each "--set p=v"
 /// location in the messages to where the study wrote the value.
 void validate_variant(const Study& st, const Variant& v, std::vector<std::string>& lines) {
   try {
-    build_model(load_scenario(st.scenario, st.set_arguments(v)));
+    load_scenario(st.scenario, st.set_arguments(v));
   } catch (const InputError& e) {
     std::string msg = e.what();
     std::vector<Override> all = st.common;

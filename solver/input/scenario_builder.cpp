@@ -1,8 +1,12 @@
-// Turns validated scenario values into the plain structs of solver/input/scenario.hpp and runs the
-// checks that need more than one key (a design that cannot stand).
+// The validation stage's last step: validated scenario values into the typed structs of
+// solver/input/scenario.hpp, with the checks that need more than one key (a design that cannot
+// stand, climbers that collide, events off the tether). Every input error is found here, before
+// anything is built; nothing after this stage sees a key.
 #include <sstream>
 
-#include "solver/assembly/environment_builder.hpp"
+#include "solver/input/climber_reader.hpp"
+#include "solver/input/integration_method.hpp"
+#include "solver/input/environment_reader.hpp"
 #include "solver/input/errors.hpp"
 #include "solver/input/scenario.hpp"
 #include "solver/input/scenario_reader.hpp"
@@ -34,7 +38,7 @@ Material build_material(const ScenarioValues& v) {
 SimulationSpec build_simulation(const ScenarioValues& v) {
   SimulationSpec sim;
   sim.given = v.has("simulation");
-  sim.method = v.text("simulation.method");
+  sim.method = parse_method(v.text("simulation.method"));  // the key table allows only these
   sim.rtol = v.quantity("simulation.rtol");
   sim.atol_position_m = v.quantity("simulation.atol_position");
   sim.atol_velocity_m_s = v.quantity("simulation.atol_velocity");
@@ -85,6 +89,7 @@ void build_initial_and_output(const ScenarioValues& v, double length_m, int elem
   }
   if (v.has("initial.mode")) {
     s.initial.mode_index = static_cast<int>(v.integer("initial.mode.index"));
+    s.initial.mode_where = v.where("initial.mode.index");
     s.initial.mode_amplitude_m = v.quantity("initial.mode.amplitude");
   }
   s.output.node_stride = static_cast<int>(v.integer("output.node_stride"));
@@ -100,7 +105,8 @@ void build_initial_and_output(const ScenarioValues& v, double length_m, int elem
       s.output.nodes.push_back(node);
     }
   }
-  s.environment = read_environment(v, s, length_m, problems);  // environment.*, events.* (issue 5)
+  s.environment = read_environment(v, s, length_m, problems);  // environment.*, events.*
+  s.climbers = read_climbers(v, length_m, s.environment.any_air(), problems);
 }
 
 /// load_cases[] and load_case_checks (planet tether; `length_m` is the tether's).
@@ -156,7 +162,7 @@ Scenario build(const ReadScenario& read, const std::string& file) {
   Scenario s;
   s.file = file;
   s.text_as_run = read.text_as_run;
-  s.values = v;
+  s.where = v.where("");
   s.name = v.has("name") ? v.text("name") : file;
   s.field.uniform = v.text("field.kind") == "uniform";
   s.j2 = v.boolean("model.j2");
