@@ -14,10 +14,22 @@ ClimberLoad::ClimberLoad(std::vector<Climber> climbers, std::vector<double> s_no
     : climbers_(std::move(climbers)),
       s_nodes_(std::move(s_nodes)),
       path_(s_nodes_),
+      spreader_(s_nodes_, LoadSpread::point, 1.0),
       point_models_(std::move(point_models)),
       reference_(reference_position),
       bars_(std::move(bars)),
       air_(std::move(air)) {}
+
+// The window is laid out along the coordinate the profiles use (path_), where xi is measured.
+void ClimberLoad::set_spread(LoadSpread kind, double half_width_elements) {
+  spread_width_elements_ = half_width_elements;
+  spreader_ = LoadSpreader(path_, kind, half_width_elements);
+}
+
+void ClimberLoad::set_path(std::vector<double> path_nodes) {
+  path_ = std::move(path_nodes);
+  spreader_ = LoadSpreader(path_, spreader_.kind(), spread_width_elements_);
+}
 
 std::vector<Attachment> ClimberLoad::attachments(double t) const {
   std::vector<Attachment> out;
@@ -44,18 +56,41 @@ std::vector<Attachment> ClimberLoad::attachments(double t) const {
     e = std::min<long>(std::max<long>(e, 0), static_cast<long>(n_el) - 1);
     const double len = path_[e + 1] - path_[e];
     Attachment a{c, static_cast<std::size_t>(e), (k.s_m - path_[e]) / len, k.speed_m_s / len, k.accel_m_s2 / len,
-                 mass};
+                 mass, SpreadWeights{}};
     a.xi = std::min(1.0, std::max(0.0, a.xi));
+    a.spread = spreader_.at(k.s_m, a.element);
+    a.s_dot = k.speed_m_s;
+    a.s_ddot = k.accel_m_s2;
     out.push_back(a);
   }
   return out;
 }
 
 ClimberLoad::PointState ClimberLoad::point(const TetherState& s, const Attachment& at) const {
-  const std::size_t e = at.element;
-  const Eigen::Vector3d d = s.x.col(e + 1) - s.x.col(e);
-  return {(1 - at.xi) * s.x.col(e) + at.xi * s.x.col(e + 1),
-          (1 - at.xi) * s.v.col(e) + at.xi * s.v.col(e + 1) + at.xi_dot * d};
+  PointState p{Eigen::Vector3d::Zero(), Eigen::Vector3d::Zero()};
+  const SpreadWeights& sw = at.spread;
+  for (std::size_t i = 0; i < sw.count; ++i) {
+    const std::size_t k = sw.first + i;
+    p.r += sw.w[i] * s.x.col(k);
+    p.v += sw.w[i] * s.v.col(k) + at.c1(i) * s.x.col(k);
+  }
+  return p;
+}
+
+Eigen::Vector3d ClimberLoad::relative_acceleration(const TetherState& s,
+                                                   const Attachment& at) const {
+  Eigen::Vector3d a = Eigen::Vector3d::Zero();
+  for (std::size_t i = 0; i < at.spread.count; ++i) {
+    const std::size_t k = at.spread.first + i;
+    a += 2 * at.c1(i) * s.v.col(k) + at.c2(i) * s.x.col(k);
+  }
+  return a;
+}
+
+Eigen::Vector3d ClimberLoad::relative_velocity(const TetherState& s, const Attachment& at) const {
+  Eigen::Vector3d u = Eigen::Vector3d::Zero();
+  for (std::size_t i = 0; i < at.spread.count; ++i) u += at.c1(i) * s.x.col(at.spread.first + i);
+  return u;
 }
 
 Eigen::Vector3d ClimberLoad::body_force(double t, const PointState& p, double mass, Eigen::Matrix3d* dr,
@@ -95,36 +130,47 @@ Eigen::Vector3d ClimberLoad::point_force(double t, const PointState& p, const At
 
 void ClimberLoad::add_forces(const TetherState& s, Matrix3X& f) const {
   for (const Attachment& at : attachments(s.t)) {
-    const std::size_t e = at.element;
     const PointState p = point(s, at);
-    const Eigen::Vector3d a_rel =
-        2 * at.xi_dot * (s.v.col(e + 1) - s.v.col(e)) + at.xi_ddot * (s.x.col(e + 1) - s.x.col(e));
-    const Eigen::Vector3d g = point_force(s.t, p, at, nullptr, nullptr) - at.mass_kg * a_rel;
-    f.col(e) += (1 - at.xi) * g;
-    f.col(e + 1) += at.xi * g;
+    const Eigen::Vector3d g =
+        point_force(s.t, p, at, nullptr, nullptr) - at.mass_kg * relative_acceleration(s, at);
+    for (std::size_t i = 0; i < at.spread.count; ++i)
+      f.col(at.spread.first + i) += at.spread.w[i] * g;
+  }
+}
+
+void ClimberLoad::jacobian_blocks(const TetherState& s, std::vector<Attachment>& out,
+                                  std::vector<ClimberJacobian>& jac) const {
+  const Eigen::Matrix3d I = Eigen::Matrix3d::Identity();
+  out = attachments(s.t);
+  jac.resize(out.size());
+  for (std::size_t a = 0; a < out.size(); ++a) {
+    const Attachment& at = out[a];
+    Eigen::Matrix3d fr, fv;
+    point_force(s.t, point(s, at), at, &fr, &fv);
+    const double m = at.mass_kg;
+    // dG/dx_k = w_k F_r + c1_k F_v - m c2_k I and dG/dv_k = w_k F_v - 2 m c1_k I
+    // (r_c = sum w x, v_c = sum (w v + c1 x), a_rel = sum (2 c1 v + c2 x)).
+    for (std::size_t c = 0; c < at.spread.count; ++c) {
+      jac[a].gx[c] = at.spread.w[c] * fr + at.c1(c) * fv - m * at.c2(c) * I;
+      jac[a].gv[c] = at.spread.w[c] * fv - 2 * m * at.c1(c) * I;
+    }
   }
 }
 
 void ClimberLoad::add_jacobian(const TetherState& s, NodeJacobian& j) const {
-  const Eigen::Matrix3d I = Eigen::Matrix3d::Identity();
-  for (const Attachment& at : attachments(s.t)) {
-    const std::size_t e = at.element;
-    const PointState p = point(s, at);
-    Eigen::Matrix3d fr, fv;
-    point_force(s.t, p, at, &fr, &fv);
-    const double xi = at.xi, xd = at.xi_dot, xdd = at.xi_ddot, m = at.mass_kg;
-    // dG/d(node) for G = F_c(r_c, v_c) - m a_rel.
-    const Eigen::Matrix3d gx_e = (1 - xi) * fr - xd * fv + m * xdd * I;
-    const Eigen::Matrix3d gx_f = xi * fr + xd * fv - m * xdd * I;
-    const Eigen::Matrix3d gv_e = (1 - xi) * fv + 2 * m * xd * I;
-    const Eigen::Matrix3d gv_f = xi * fv - 2 * m * xd * I;
-    const double w[2] = {1 - xi, xi};
-    for (int r = 0; r < 2; ++r) {
-      j.dx(e + r, e) += w[r] * gx_e;
-      j.dx(e + r, e + 1) += w[r] * gx_f;
-      j.dv(e + r, e) += w[r] * gv_e;
-      j.dv(e + r, e + 1) += w[r] * gv_f;
-    }
+  std::vector<Attachment> att;
+  std::vector<ClimberJacobian> jac;
+  jacobian_blocks(s, att, jac);
+  for (std::size_t a = 0; a < att.size(); ++a) {
+    const SpreadWeights& sw = att[a].spread;
+    // Couplings beyond a node's neighbours (a smooth spread over more than two nodes) stay
+    // out of this banded form; the integrator's Newton solver takes them from jacobian_blocks().
+    for (std::size_t c = 0; c < sw.count; ++c)
+      for (std::size_t r = 0; r < sw.count; ++r) {
+        if (r > c + 1 || c > r + 1) continue;
+        j.dx(sw.first + r, sw.first + c) += sw.w[r] * jac[a].gx[c];
+        j.dv(sw.first + r, sw.first + c) += sw.w[r] * jac[a].gv[c];
+      }
   }
 }
 
@@ -132,7 +178,8 @@ std::vector<double> ClimberLoad::event_times() const {
   std::vector<double> t;
   for (const Climber& c : climbers_) {
     for (double ts : c.profile.segment_times()) t.push_back(ts);
-    for (double tc : c.profile.crossing_times(path_)) t.push_back(tc);
+    if (spreader_.kind() == LoadSpread::point)
+      for (double tc : c.profile.crossing_times(path_)) t.push_back(tc);
   }
   std::sort(t.begin(), t.end());
   t.erase(std::unique(t.begin(), t.end()), t.end());
@@ -141,17 +188,17 @@ std::vector<double> ClimberLoad::event_times() const {
 
 Eigen::Vector3d ClimberLoad::reaction(const TetherState& s, const Attachment& at) const {
   if (s.a == nullptr) return Eigen::Vector3d::Constant(std::nan(""));
-  const std::size_t e = at.element;
   const Matrix3X& a = *s.a;
-  const Eigen::Vector3d a_rel = 2 * at.xi_dot * (s.v.col(e + 1) - s.v.col(e)) + at.xi_ddot * (s.x.col(e + 1) - s.x.col(e));
-  const Eigen::Vector3d a_c = (1 - at.xi) * a.col(e) + at.xi * a.col(e + 1) + a_rel;
+  Eigen::Vector3d a_c = relative_acceleration(s, at);
+  for (std::size_t i = 0; i < at.spread.count; ++i)
+    a_c += at.spread.w[i] * a.col(at.spread.first + i);
   return at.mass_kg * a_c - point_force(s.t, point(s, at), at, nullptr, nullptr);
 }
 
 double ClimberLoad::drive_power(const TetherState& s) const {
   double p = 0.0;
   for (const Attachment& at : attachments(s.t))
-    p += reaction(s, at).dot(at.xi_dot * (s.x.col(at.element + 1) - s.x.col(at.element)));
+    p += reaction(s, at).dot(relative_velocity(s, at));
   return p;
 }
 
@@ -204,8 +251,7 @@ void ClimberLoad::work_power(const TetherState& s, const Matrix3X&, double* powe
   std::vector<double> p;
   for (const Attachment& at : attachments(s.t)) {
     const PointState pt = point(s, at);
-    const Eigen::Vector3d relative = at.xi_dot * (s.x.col(at.element + 1) - s.x.col(at.element));
-    power_w[0] += reaction(s, at).dot(relative);
+    power_w[0] += reaction(s, at).dot(relative_velocity(s, at));  // as drive_power()
     if (drag < channels.size() && climbers_[at.climber].drag_area_m2 > 0.0) {
       const Eigen::Vector3d f_air = point_force(s.t, pt, at, nullptr, nullptr) -
                                     body_force(s.t, pt, at.mass_kg, nullptr, nullptr);
@@ -319,13 +365,19 @@ void ClimberLoad::sample_outputs(const TetherState& s, const std::vector<std::si
     const Attachment& at = *it;
     const std::size_t e = at.element;
     const PointState p = point(s, at);
-    const Eigen::Vector3d tangent = (s.x.col(e + 1) - s.x.col(e)).normalized();
+    // The ribbon's direction under the climber, dr_c/ds = sum w_k' x_k (for point: the element's).
+    Eigen::Vector3d along = Eigen::Vector3d::Zero();
+    for (std::size_t i = 0; i < at.spread.count; ++i)
+      along += at.spread.dw[i] * s.x.col(at.spread.first + i);
+    const Eigen::Vector3d tangent = along.normalized();
     const Eigen::Vector3d reaction_n = reaction(s, at);
     // Coriolis force on the climber: -2 m Omega x v_c, from the point models' velocity terms.
     Eigen::Matrix3d fv;
     body_force(s.t, p, at.mass_kg, nullptr, &fv);
     const Eigen::Vector3d coriolis = fv * p.v;
-    const Eigen::Vector3d on_line = (1 - at.xi) * reference_.col(e) + at.xi * reference_.col(e + 1);
+    Eigen::Vector3d on_line = Eigen::Vector3d::Zero();
+    for (std::size_t i = 0; i < at.spread.count; ++i)
+      on_line += at.spread.w[i] * reference_.col(at.spread.first + i);
     const Eigen::Vector3d offset = p.r - on_line;
     // Tensions just below and above the climber: the elements on either side of its nearest node.
     const std::size_t k = e + (at.xi >= 0.5 ? 1 : 0);

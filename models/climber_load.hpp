@@ -12,6 +12,10 @@
 // This model adds w (F_c - m a_rel) to the forces and its Jacobian; the mass term m w w^T is
 // the system's (attachments()). The drive force is R along the element, the part of R that
 // keeps s(t) on its profile; R's power on the relative motion, R . (xi' d), is the drive's work.
+// In general the weights w_k(s) come from a LoadSpreader (models/load_spread.hpp): with
+// s' = ds/dt, r_c = sum w_k x_k, v_c = sum (w_k v_k + s' w_k' x_k) and
+// a_rel = sum (2 s' w_k' v_k + (s'' w_k' + s'^2 w_k'') x_k); the two-node form above is the
+// `point` spread (w' = -+1/L0, w'' = 0), whose node crossings are stop times of the run.
 #include <memory>
 #include <string>
 #include <vector>
@@ -20,6 +24,7 @@
 #include "models/bar_elements.hpp"
 #include "models/climber_profile.hpp"
 #include "models/force_model.hpp"
+#include "models/load_spread.hpp"
 
 namespace hawser {
 
@@ -35,12 +40,23 @@ struct Climber {
   double drag_area_m2 = 0.0; // drag coefficient times frontal area, Cd A [m^2]; 0: no drag
 };
 
+/// One climber's share of the Jacobian: it adds w_k G to node k, G = F_c(r_c, v_c) - m a_rel,
+/// so dF_k/dx_j = w_k dG/dx_j and dF_k/dv_j = w_k dG/dv_j for the nodes j of its spread.
+struct ClimberJacobian {
+  std::array<Eigen::Matrix3d, SpreadWeights::kMaxNodes> gx, gv;  // dG/dx_j [N/m], dG/dv_j [N s/m]
+};
+
 /// Where a climber is at time t, for the mass matrix and the forces.
 struct Attachment {
   std::size_t climber;
   std::size_t element;
   double xi, xi_dot, xi_ddot;  // [-], [1/s], [1/s^2]
   double mass_kg;
+  SpreadWeights spread;        // the nodes the climber loads and their weights
+  double s_dot = 0.0, s_ddot = 0.0;  // [m/s], [m/s^2]
+  /// s' w_k' [1/s] and s'' w_k' + s'^2 w_k'' [1/s^2] of node spread.first + i.
+  double c1(std::size_t i) const { return s_dot * spread.dw[i]; }
+  double c2(std::size_t i) const { return s_ddot * spread.dw[i] + s_dot * s_dot * spread.ddw[i]; }
 };
 
 class ClimberLoad : public ForceModel {
@@ -62,17 +78,25 @@ class ClimberLoad : public ForceModel {
   /// distance along the ribbon at rest (stretched), a climber's speed is what its wheels see
   /// over the stretched ribbon. Between nodes both coordinates are linear in the element's
   /// parameter xi, so a profile p(t) gives xi = (p - p_e) / (p_{e+1} - p_e).
-  void set_path(std::vector<double> path_nodes) { path_ = std::move(path_nodes); }
+  void set_path(std::vector<double> path_nodes);
   /// The material coordinate [m] of path coordinate p [m].
   double material_coordinate(double path_m) const;
 
   /// In parked mode (for the starting equilibrium) every climber that is not a sudden load
   /// sits at its start, at rest.
   void set_parked(bool parked) { parked_ = parked; }
+  /// How the load is shared among the nodes (default: point); half_width_elements: the
+  /// smooth window's half width in shortest elements.
+  void set_spread(LoadSpread kind, double half_width_elements);
+  LoadSpread spread() const { return spreader_.kind(); }
   std::vector<Attachment> attachments(double t_s) const;
 
   void add_forces(const TetherState& s, Matrix3X& f) const override;
   void add_jacobian(const TetherState& s, NodeJacobian& j) const override;
+  /// The attachments at s.t and, for each, its dG/dx_j and dG/dv_j (the whole Jacobian, also
+  /// for a spread beyond a node's neighbours: for the integrator's Newton solver).
+  void jacobian_blocks(const TetherState& s, std::vector<Attachment>& at,
+                       std::vector<ClimberJacobian>& jac) const;
   std::vector<double> event_times() const override;
   std::vector<OutputField> output_fields(const std::vector<std::size_t>& nodes) const override;
   std::vector<OutputAttribute> output_attributes() const override;
@@ -115,10 +139,15 @@ class ClimberLoad : public ForceModel {
                               Eigen::Matrix3d* dv) const;
   /// The tether's push R on the climber (m a_c - F_c); needs s.a.
   Eigen::Vector3d reaction(const TetherState& s, const Attachment& at) const;
+  /// The climber's acceleration relative to the tether's, a_rel, and its velocity s' w' . x.
+  Eigen::Vector3d relative_acceleration(const TetherState& s, const Attachment& at) const;
+  Eigen::Vector3d relative_velocity(const TetherState& s, const Attachment& at) const;
 
   std::vector<Climber> climbers_;
   std::vector<double> s_nodes_;
   std::vector<double> path_;  // the profiles' coordinate at the nodes (set_path; default s_nodes_)
+  LoadSpreader spreader_;
+  double spread_width_elements_ = 1.0;  // the window's half width (set_spread)
   std::vector<std::shared_ptr<const ForceModel>> point_models_;
   Matrix3X reference_;
   std::shared_ptr<const BarElements> bars_;     // null: no tensions in the outputs

@@ -47,6 +47,9 @@ std::vector<LoadCaseResult> evaluate_load_cases(const Scenario& sc) {
     loads.counterweight_kg = m.mesh.as_built_counterweight_kg * (1.0 + c.counterweight_change);
     loads.mean_wind = c.mean_wind;
     loads.tides = c.tides;
+    // As a run would start from (tether_model.cpp): the climbers' load spread as in the run.
+    loads.spread = sc.mesh.climber_load_smooth ? LoadSpread::smooth : LoadSpread::point;
+    loads.spread_width = sc.mesh.climber_load_width;
     try {
       const LoadedState st = solve_static_loads(m, loads);
       const Matrix3X& x = st.state.position_m;

@@ -95,6 +95,7 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
                                            m.mesh.as_built_position, nullptr, air);
     parked->set_parked(true);
     if (!l.climber_path.empty()) parked->set_path(l.climber_path);
+    parked->set_spread(l.spread, l.spread_width);
     if (!parked->attachments(0.0).empty()) set.added.push_back(parked.get());
   }
   if (l.mean_wind && m.mean_drag) set.added.push_back(m.mean_drag.get());
@@ -104,6 +105,7 @@ LoadedState solve_static_loads(const TetherModel& m, const StaticLoads& l) {
     built_under = std::make_unique<ClimberLoad>(m.built_under, m.equilibrium.s0_m, untided,
                                                 m.mesh.as_built_position);
     built_under->set_parked(true);
+    built_under->set_spread(l.spread, l.spread_width);
     set.removed.push_back(built_under.get());
   }
   if (tide) set.added.push_back(tide.get());

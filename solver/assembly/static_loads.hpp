@@ -19,6 +19,8 @@ struct StaticLoads {
   double counterweight_kg = 0;  // hung at the top node [kg] (planet tether; ignored on the bench)
   bool mean_wind = false;       // the model's mean_drag (must exist)
   bool tides = false;           // the model's tidal force at t = 0 (must exist)
+  LoadSpread spread = LoadSpread::point;  // how the climbers' loads reach the nodes (as in the run)
+  double spread_width = 1.0;              // smooth: the window's half width [shortest elements]
 };
 
 struct LoadedState {

@@ -82,6 +82,8 @@ TetherModel build_as_built(const Scenario& sc) {
       case_climbers = std::make_unique<ClimberLoad>(on_line, reference, point_models,
                                                     m.mesh.position);
       case_climbers->set_parked(true);
+      case_climbers->set_spread(sc.mesh.climber_load_smooth ? LoadSpread::smooth : LoadSpread::point,
+                                sc.mesh.climber_load_width);
       body.push_back(case_climbers.get());
     }
     m.built_under_case = c.name;
@@ -132,6 +134,8 @@ TetherModel build_model(const Scenario& sc) {
   loads.counterweight_kg = m.mesh.counterweight_mass;
   loads.mean_wind = m.mean_drag != nullptr;
   loads.tides = sc.environment.tides.in_static_state;
+  loads.spread = sc.mesh.climber_load_smooth ? LoadSpread::smooth : LoadSpread::point;
+  loads.spread_width = sc.mesh.climber_load_width;
   const LoadedState st = solve_static_loads(m, loads);
   if (st.loaded) {
     m.mesh.position = st.state.position_m;
@@ -151,6 +155,8 @@ TetherModel build_model(const Scenario& sc) {
     m.climbers = std::make_unique<ClimberLoad>(loads.parked, m.equilibrium.s0_m, point_models,
                                                m.mesh.as_built_position, m.bars, m.drag);
     if (over_stretched) m.climbers->set_path(reference);
+    m.climbers->set_spread(sc.mesh.climber_load_smooth ? LoadSpread::smooth : LoadSpread::point,
+                           sc.mesh.climber_load_width);
   }
   return m;
 }

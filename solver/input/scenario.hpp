@@ -24,6 +24,8 @@ struct MeshSpec {
   int elements = 0;
   bool geometric = false;               // geometric grading from the anchor
   double first_element_length_m = 0.0;  // geometric only
+  bool climber_load_smooth = true;      // climbers' load: smooth window, else on two nodes
+  double climber_load_width = 1.0;      // smooth window's half width [shortest elements]
 };
 
 /// The laboratory test bench (field.kind = uniform) or the planet's rotating frame.

@@ -172,6 +172,8 @@ Scenario build(const ReadScenario& read, const std::string& file) {
   s.material = build_material(v);
   s.mesh.elements = static_cast<int>(v.integer("mesh.elements"));
   s.mesh.geometric = v.text("mesh.grading") == "geometric";
+  s.mesh.climber_load_smooth = v.text("mesh.climber_load") == "smooth";
+  s.mesh.climber_load_width = v.quantity("mesh.climber_load_width");
   if (s.mesh.geometric) s.mesh.first_element_length_m = v.quantity("mesh.first_element_length");
 
   s.simulation = build_simulation(v);

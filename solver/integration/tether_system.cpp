@@ -100,6 +100,7 @@ void TetherSystem::node_state(double t, const double* y, Matrix3X& x, Matrix3X& 
 
 void TetherSystem::rhs(double t, const double* y, double* ydot) {
   node_state(t, y, x_, v_);
+  state_t_ = t;
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   f_.setZero();
   double dissipation = 0.0;
@@ -145,6 +146,7 @@ void TetherSystem::rhs(double t, const double* y, double* ydot) {
 
 void TetherSystem::jacobian(double t, const double* y, const double*, const BandJacobian& j) {
   node_state(t, y, x_, v_);
+  state_t_ = t;
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   jac_.set_zero();
   for (const ForceModel* m : forces_) m->add_jacobian(s, jac_);
@@ -173,6 +175,7 @@ void TetherSystem::jacobian(double t, const double* y, const double*, const Band
 
 void TetherSystem::roots(double t, const double* y, double* g) {
   node_state(t, y, x_, v_);
+  state_t_ = t;
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   g[0] = model_.bars->rupture_indicator(s, capacity_);
 }
@@ -223,22 +226,28 @@ namespace hawser {
 void TetherSystem::newton_jacobian(double t, const double* y) {
   newton_t_ = t;
   node_state(t, y, x_, v_);
+  state_t_ = t;
   const TetherState s{t, x_, v_, model_.mesh.node_mass};
   newton_jac_.set_zero();
-  for (const ForceModel* m : forces_) m->add_jacobian(s, newton_jac_);
+  // The climbers' terms reach beyond the band for a smooth spread: they are kept apart, whole.
+  for (const ForceModel* m : forces_)
+    if (m != model_.climbers.get()) m->add_jacobian(s, newton_jac_);
+  newton_att_.clear();
+  newton_cj_.clear();
+  if (model_.climbers) model_.climbers->jacobian_blocks(s, newton_att_, newton_cj_);
 }
 
 void TetherSystem::newton_factor(double gamma) {
   newton_gamma_ = gamma;
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
   const double g2 = gamma * gamma;
-  assemble_mass(newton_t_);
+  const Eigen::VectorXd& mass = model_.mesh.node_mass;
   auto block = [&](std::size_t k, std::size_t j) -> Eigen::Matrix3d {
     Eigen::Matrix3d a = -gamma * newton_jac_.dv(k, j) - g2 * newton_jac_.dx(k, j);
-    const double m = k == j ? diag_[k] : off_[std::min(k, j)];
-    a.diagonal().array() += m;
+    if (k == j) a.diagonal().array() += mass[k];
     return a;
   };
+  // The tether's part T (lumped masses, every model but the climbers), block tridiagonal.
   // Block Gaussian elimination: D_first = A_ff; L_k = A_{k,k-1} D_{k-1}^-1;
   // E_{k-1} = D_{k-1}^-1 A_{k-1,k}; D_k = A_kk - A_{k,k-1} E_{k-1}.
   for (std::size_t k = first; k <= last; ++k) {
@@ -259,6 +268,65 @@ void TetherSystem::newton_factor(double gamma) {
     nb.d_inv = d.inverse();
   }
   blocks_[last].e_next.setZero();
+  // The climbers' part, taken afresh at the latest state the system saw (the integrator's
+  // current stage, while the tether's part may be some steps old): a moving climber's mass
+  // leaves the nodes the kept Jacobian put it on, and on short elements that stalls Newton.
+  if (model_.climbers) {
+    const TetherState now{state_t_, x_, v_, model_.mesh.node_mass};
+    model_.climbers->jacobian_blocks(now, newton_att_, newton_cj_);
+  }
+  // U V^T: climber c adds w_k R_cj to block (k, j), with
+  // R_cj = m w_j I - gamma dG/dv_j - gamma^2 dG/dx_j; U's columns (w_k e_a) go through T^-1
+  // now, for the Woodbury identity in newton_solve (Golub and Van Loan, Matrix
+  // Computations, 4th ed., section 2.1.4). 3 columns per climber, O(N) each.
+  const std::size_t nc = newton_att_.size();
+  newton_r_.resize(nc);
+  z_cols_.resize(3 * nc);
+  for (std::size_t c = 0; c < nc; ++c) {
+    const Attachment& at = newton_att_[c];
+    for (std::size_t j = 0; j < at.spread.count; ++j) {
+      newton_r_[c][j] = -gamma * newton_cj_[c].gv[j] - g2 * newton_cj_[c].gx[j];
+      newton_r_[c][j].diagonal().array() += at.mass_kg * at.spread.w[j];
+    }
+    for (int a = 0; a < 3; ++a) {
+      std::vector<Eigen::Vector3d>& z = z_cols_[3 * c + a];
+      z.assign(model_.nodes(), Eigen::Vector3d::Zero());
+      for (std::size_t i = 0; i < at.spread.count; ++i) {
+        const std::size_t k = at.spread.first + i;
+        if (k >= first && k <= last) z[k][a] = at.spread.w[i];
+      }
+      block_solve(z);
+    }
+  }
+  Eigen::MatrixXd cap = Eigen::MatrixXd::Identity(3 * nc, 3 * nc);  // I + V^T T^-1 U
+  for (std::size_t c = 0; c < nc; ++c)
+    for (std::size_t col = 0; col < 3 * nc; ++col)
+      cap.block<3, 1>(3 * c, col) += climber_product(c, z_cols_[col]);
+  capacitance_.compute(cap);
+}
+
+Eigen::Vector3d TetherSystem::climber_product(std::size_t c,
+                                              const std::vector<Eigen::Vector3d>& z) const {
+  // (V^T z) for climber c: sum over its free nodes j of R_cj z_j.
+  const Attachment& at = newton_att_[c];
+  Eigen::Vector3d out = Eigen::Vector3d::Zero();
+  for (std::size_t j = 0; j < at.spread.count; ++j) {
+    const std::size_t k = at.spread.first + j;
+    if (layout_.is_free(k)) out.noalias() += newton_r_[c][j] * z[k];
+  }
+  return out;
+}
+
+void TetherSystem::block_solve(std::vector<Eigen::Vector3d>& r) const {
+  // Forward: z_k = r_k - L_k z_{k-1}, y_k = D_k^-1 z_k; back: w_k = y_k - E_k w_{k+1}.
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  Eigen::Vector3d z_prev = Eigen::Vector3d::Zero();
+  for (std::size_t k = first; k <= last; ++k) {
+    r[k].noalias() -= blocks_[k].lower * z_prev;
+    z_prev = r[k];
+    r[k] = blocks_[k].d_inv * z_prev;
+  }
+  for (std::size_t k = last; k-- > first;) r[k].noalias() -= blocks_[k].e_next * r[k + 1];
 }
 
 void TetherSystem::newton_solve(const double* b, double* x) const {
@@ -266,34 +334,53 @@ void TetherSystem::newton_solve(const double* b, double* x) const {
   using CMap = Eigen::Map<const Vec3>;
   const std::size_t first = layout_.first_free(), last = layout_.last_free();
   const double gamma = newton_gamma_;
+  const Eigen::VectorXd& mass = model_.mesh.node_mass;
   constexpr std::size_t kStride = StateLayout::kPerNode;  // per free node: u_k (3) then v_k (3)
-  // Forward pass. The reduced right-hand side (M r_v)_k + gamma sum_j dF_k/dx_j r_u,j is
-  // formed node by node and eliminated at once: z_k = r_k - L_k z_{k-1}, y_k = D_k^-1 z_k.
-  // It only reads b; the back pass writes x (which may be b) after it.
-  Vec3 z_prev = Vec3::Zero();
+  auto r_u = [&](std::size_t k) { return CMap(b + kStride * (k - first)); };
+  auto r_v = [&](std::size_t k) { return CMap(b + kStride * (k - first) + 3); };
+  // The reduced right-hand side M r_v + gamma dF/dx r_u: the tether's part node by node ...
   for (std::size_t k = first; k <= last; ++k) {
     const NewtonBlocks& nb = blocks_[k];
-    const double* bk = b + kStride * (k - first);
-    Vec3 r = diag_[k] * CMap(bk + 3) + nb.gdx_self * CMap(bk);
-    if (k > first) r.noalias() += off_[k - 1] * CMap(bk - kStride + 3) + nb.gdx_prev * CMap(bk - kStride);
-    if (k < last) r.noalias() += off_[k] * CMap(bk + kStride + 3) + nb.gdx_next * CMap(bk + kStride);
-    r.noalias() -= nb.lower * z_prev;
-    z_prev = r;
-    work_[k].noalias() = nb.d_inv * r;
+    Vec3 r = mass[k] * r_v(k) + nb.gdx_self * r_u(k);
+    if (k > first) r.noalias() += nb.gdx_prev * r_u(k - 1);
+    if (k < last) r.noalias() += nb.gdx_next * r_u(k + 1);
+    work_[k] = r;
   }
-  // Back pass: w_k = y_k - E_k w_{k+1}; then dv = w, du = r_u + gamma dv. It reads b at k
-  // only, so x may be b. The quadrature rows are identity.
-  Vec3 w_next = Vec3::Zero();
-  for (std::size_t k = last + 1; k-- > first;) {
-    Vec3 w = work_[k];
-    w.noalias() -= blocks_[k].e_next * w_next;
+  // ... and each climber's, w_k (m w . r_v + gamma dG/dx . r_u) on its nodes.
+  const std::size_t nc = newton_att_.size();
+  for (std::size_t c = 0; c < nc; ++c) {
+    const Attachment& at = newton_att_[c];
+    Vec3 g = Vec3::Zero();
+    for (std::size_t j = 0; j < at.spread.count; ++j) {
+      const std::size_t k = at.spread.first + j;
+      if (!layout_.is_free(k)) continue;
+      g.noalias() += at.mass_kg * at.spread.w[j] * r_v(k) + gamma * (newton_cj_[c].gx[j] * r_u(k));
+    }
+    for (std::size_t i = 0; i < at.spread.count; ++i) {
+      const std::size_t k = at.spread.first + i;
+      if (layout_.is_free(k)) work_[k] += at.spread.w[i] * g;
+    }
+  }
+  block_solve(work_);  // y = T^-1 r
+  if (nc > 0) {
+    // Woodbury: dv = y - Z (I + V^T Z)^-1 V^T y, Z = T^-1 U.
+    Eigen::VectorXd vy(3 * nc);
+    for (std::size_t c = 0; c < nc; ++c) vy.segment<3>(3 * c) = climber_product(c, work_);
+    const Eigen::VectorXd q = capacitance_.solve(vy);
+    for (std::size_t col = 0; col < 3 * nc; ++col) {
+      const std::vector<Vec3>& z = z_cols_[col];
+      for (std::size_t k = first; k <= last; ++k) work_[k].noalias() -= q[col] * z[k];
+    }
+  }
+  // dv = w, du = r_u + gamma dv; the quadrature rows are identity. x may be b: each node's
+  // b is read before its x is written, and nothing later reads it.
+  for (std::size_t k = first; k <= last; ++k) {
     const double* bk = b + kStride * (k - first);
     double* xk = x + kStride * (k - first);
     for (int a = 0; a < 3; ++a) {
-      xk[a] = bk[a] + gamma * w[a];
-      xk[3 + a] = w[a];
+      xk[a] = bk[a] + gamma * work_[k][a];
+      xk[3 + a] = work_[k][a];
     }
-    w_next = w;
   }
   for (std::size_t q = layout_.dissipated_energy(); q < layout_.size(); ++q) x[q] = b[q];
 }
@@ -308,15 +395,64 @@ void TetherSystem::assemble_mass(double t) {
     off_[k] = 0.0;
   }
   touched_.clear();
+  attached_.clear();
+  wide_ = false;
   if (!model_.climbers) return;
-  for (const Attachment& at : model_.climbers->attachments(t)) {
-    const std::size_t e = at.element;
-    const double w0 = 1.0 - at.xi, w1 = at.xi;
-    diag_[e] += at.mass_kg * w0 * w0;
-    diag_[e + 1] += at.mass_kg * w1 * w1;
-    off_[e] += at.mass_kg * w0 * w1;
-    touched_.push_back(e);
-    touched_.push_back(e + 1);
+  attached_ = model_.climbers->attachments(t);
+  for (const Attachment& at : attached_) {
+    const SpreadWeights& sw = at.spread;
+    wide_ = wide_ || sw.count > 2;
+    for (std::size_t i = 0; i < sw.count; ++i) {
+      const std::size_t k = sw.first + i;
+      touched_.push_back(k);
+      for (std::size_t j = 0; j < sw.count; ++j) {
+        const double mij = at.mass_kg * sw.w[i] * sw.w[j];
+        if (j == i + 1)
+          off_[k] += mij;
+        else if (j + 1 != i)
+          diag_[k] += mij;  // the diagonal, and (a wide spread) couplings beyond the band, lumped
+      }
+    }
+  }
+}
+
+void TetherSystem::solve_mass_wide(Matrix3X& f) const {
+  // M = D + W diag(m) W^T (D the lumped masses, column c of W climber c's weights on the
+  // free nodes): by the Woodbury identity (Golub and Van Loan, Matrix Computations, 4th ed.,
+  // section 2.1.4), with g = D^-1 f, B = W^T g and S = I + diag(m) W^T D^-1 W,
+  //   M^-1 f = g - D^-1 W Y,   S Y = diag(m) B;
+  // S is climbers x climbers, so the solve costs O(N + climbers^3).
+  const std::size_t first = layout_.first_free(), last = layout_.last_free();
+  const std::size_t nc = attached_.size();
+  for (std::size_t k = first; k <= last; ++k) f.col(k) *= inverse_mass_[k];
+  Eigen::MatrixXd S = Eigen::MatrixXd::Identity(nc, nc), B = Eigen::MatrixXd::Zero(nc, 3);
+  auto free_weight = [&](const Attachment& at, std::size_t i) {
+    const std::size_t k = at.spread.first + i;
+    return (k < first || k > last) ? 0.0 : at.spread.w[i];
+  };
+  for (std::size_t c = 0; c < nc; ++c) {
+    const Attachment& ac = attached_[c];
+    for (std::size_t i = 0; i < ac.spread.count; ++i) {
+      const std::size_t k = ac.spread.first + i;
+      const double wc = free_weight(ac, i);
+      if (wc == 0.0) continue;
+      B.row(c) += wc * f.col(k).transpose();
+      for (std::size_t d = 0; d < nc; ++d) {
+        const Attachment& ad = attached_[d];
+        if (k < ad.spread.first || k >= ad.spread.first + ad.spread.count) continue;
+        S(c, d) += ac.mass_kg * wc * free_weight(ad, k - ad.spread.first) * inverse_mass_[k];
+      }
+    }
+    B.row(c) *= ac.mass_kg;
+  }
+  const Eigen::MatrixXd Y = S.partialPivLu().solve(B);
+  for (std::size_t c = 0; c < nc; ++c) {
+    const Attachment& ac = attached_[c];
+    for (std::size_t i = 0; i < ac.spread.count; ++i) {
+      const std::size_t k = ac.spread.first + i;
+      const double wc = free_weight(ac, i);
+      if (wc != 0.0) f.col(k) -= wc * inverse_mass_[k] * Y.row(c).transpose();
+    }
   }
 }
 
@@ -326,6 +462,7 @@ void TetherSystem::solve_mass(Matrix3X& f) const {
   // ones (zero for fixed points), and their mass couplings drop out of the free equations.
   for (std::size_t k = 0; k < first; ++k) f.col(k).setZero();
   for (std::size_t k = last + 1; k < static_cast<std::size_t>(f.cols()); ++k) f.col(k).setZero();
+  if (wide_) return solve_mass_wide(f);
   if (touched_.empty()) {  // lumped masses only: a = f / m
     double* fp = f.data();
     for (std::size_t k = first; k <= last; ++k)

@@ -3,6 +3,7 @@
 // banded Jacobian from the force models (the one place this happens), following the state
 // layout of solver/integration/state_layout.hpp. Equations of motion of free node k (lumped mass m_k):
 //   u_k' = v_k,   m_k v_k' = sum of the model forces on node k.
+#include <Eigen/LU>
 #include <array>
 #include <vector>
 
@@ -46,7 +47,10 @@ class TetherSystem : public OdeSystem {
   /// a block-tridiagonal system of 3x3 blocks solved by block Gaussian elimination (block
   /// Thomas algorithm) in O(N). The matrix is the tether's effective dynamic stiffness:
   /// mass plus damping plus (positive) stiffness terms, so elimination without pivoting
-  /// between blocks is stable; each diagonal block is inverted exactly.
+  /// between blocks is stable; each diagonal block is inverted exactly. The climbers' terms
+  /// (consistent mass and dF/dx, dF/dv over all the nodes of their spread, which for a smooth
+  /// spread reach beyond the band) are a low-rank update, 3 per climber, solved exactly by
+  /// the Woodbury identity: still O(N) per solve for a fixed number of climbers.
   bool has_newton_solver() const override { return true; }
   void newton_jacobian(double t, const double* y) override;
   void newton_factor(double gamma) override;
@@ -90,10 +94,17 @@ class TetherSystem : public OdeSystem {
   /// tridiagonal (Thomas) algorithm on each run of nodes coupled by climbers (a lone
   /// climber's run is two nodes); a = f / m elsewhere.
   void solve_mass(Matrix3X& f_to_a) const;
+  /// The same for climbers spread over more than two nodes (a smooth spread), exactly, by
+  /// the Woodbury identity. diag_ and off_ then hold the band of M, with its couplings
+  /// beyond the band lumped onto the diagonal: the Newton matrix's approximation.
+  void solve_mass_wide(Matrix3X& f_to_a) const;
+  std::vector<Attachment> attached_;  // the climbers at the time of the last assemble_mass()
+  bool wide_ = false;                 // some climber spread over more than two nodes
   Eigen::VectorXd diag_, inverse_mass_, off_;
   std::vector<std::size_t> touched_;  // nodes whose mass entries differ from the lumped ones
   mutable Eigen::VectorXd thomas_c_;
   Matrix3X x_, v_, f_;    // work arrays (all nodes)
+  double state_t_ = 0.0;  // the time of x_, v_ (the latest state evaluated)
   NodeJacobian jac_;
   NodeJacobian newton_jac_;                 // Jacobian of the last newton_jacobian()
   double newton_gamma_ = 0.0;
@@ -106,6 +117,15 @@ class TetherSystem : public OdeSystem {
     Eigen::Matrix3d e_next;                        // E_k = D_k^-1 A_{k,k+1}
   };
   std::vector<NewtonBlocks> blocks_;
+  /// Solves T w = r in place, T the factored tether part (blocks_).
+  void block_solve(std::vector<Eigen::Vector3d>& r) const;
+  /// V_c^T z: climber c's rows of the low-rank part applied to z (all nodes).
+  Eigen::Vector3d climber_product(std::size_t c, const std::vector<Eigen::Vector3d>& z) const;
+  std::vector<Attachment> newton_att_;       // the climbers at newton_t_
+  std::vector<ClimberJacobian> newton_cj_;   // their dG/dx_j, dG/dv_j
+  std::vector<std::array<Eigen::Matrix3d, SpreadWeights::kMaxNodes>> newton_r_;  // R_cj
+  std::vector<std::vector<Eigen::Vector3d>> z_cols_;  // T^-1 U, 3 columns per climber
+  Eigen::PartialPivLU<Eigen::MatrixXd> capacitance_;  // I + V^T T^-1 U
   std::vector<double> capacity_;      // per element: area x ultimate strength [N]
   mutable std::vector<Eigen::Vector3d> work_;  // per free node, of newton_solve
 };

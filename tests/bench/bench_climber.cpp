@@ -7,17 +7,22 @@
 // unstretched ribbon, cruises and stops at 35,786 km altitude (the geostationary radius,
 // 42,164 km from the centre): 644,204 s of climbing, run for 179 h (7.46 days).
 // Equations: the tether's nodes in the rotating frame with the climber's consistent inertia
-// (physics.md section 5), (M + m w w^T) a = F + w (F_c - m a_rel); the integrator stops at
-// every node crossing and ramp end (N + 4 stop times).
+// (physics.md section 5), (M + m w w^T) a = F + w (F_c - m a_rel), w the climber load's
+// weights (models/load_spread.hpp): smooth by default (window half width 1 shortest
+// element; stop times only at the ramp ends, 4), or point (--load point: the integrator also
+// stops at every node crossing, N + 4 stop times).
 // Solver: CVODE BDF (order <= 2) with the structured block-tridiagonal Newton solver, rtol
 // 1e-6, atol 1e-3 m and, by default, 1e-4 m/s (the climber rings the ribbon's shortest modes
 // near it; at the default 1e-6 m/s the integrator follows those tiny oscillations: measured
 // 243,706 steps for the first 12 h at N = 1000, against 68,446 at 1e-4 m/s).
 //
-//   bench_climber [N ...] [--atol-velocity V] [--hours H]
-//     N             element counts (default: 250 500 1000)
+//   bench_climber [N ...] [--atol-velocity V] [--hours H] [--load L] [--width W] [--method M]
+//     N             element counts (default: 250 500 1000 2000 4000)
 //     V             absolute velocity tolerance [m/s] (default 1e-4)
 //     H             simulated hours (default 179: the whole transit)
+//     L             climber load, smooth or point (default smooth)
+//     W             smooth window's half width in shortest elements (default 1)
+//     M             simulation.method (default bdf)
 // Prints, per N: status, solver statistics, wall and processor time, and what the climber
 // did (where it ended, its peak drive force, its largest offsets east and west of the line at
 // rest, the top's displacement at the end).
@@ -57,7 +62,8 @@ struct TransitSink : OutputSink {
   }
 };
 
-std::string scenario_text(int n, const std::string& atol_velocity, const std::string& hours) {
+std::string scenario_text(int n, const std::string& atol_velocity, const std::string& hours,
+                          const std::string& load, const std::string& width, const std::string& method) {
   return "name: climber transit benchmark\n"
          "planet: earth\n"
          "material: kestrel_k100\n"
@@ -66,10 +72,10 @@ std::string scenario_text(int n, const std::string& atol_velocity, const std::st
          "counterweight: {mass: computed}\n"
          "anchor: {latitude: 0 deg, longitude: -125 deg}\n"
          "mesh: {elements: " +
-         std::to_string(n) +
+         std::to_string(n) + ", climber_load: " + load + ", climber_load_width: " + width +
          "}\n"
          "simulation: {duration: " +
-         hours + " h, output_interval: 1 h, method: bdf, rtol: 1.0e-6, atol_position: 1.0e-3, atol_velocity: " +
+         hours + " h, output_interval: 1 h, method: " + method + ", rtol: 1.0e-6, atol_position: 1.0e-3, atol_velocity: " +
          atol_velocity +
          "}\n"
          "climbers:\n"
@@ -81,26 +87,33 @@ std::string scenario_text(int n, const std::string& atol_velocity, const std::st
 
 int main(int argc, char** argv) {
   std::vector<int> sizes;
-  std::string atol_velocity = "1.0e-4", hours = "179";
+  std::string atol_velocity = "1.0e-4", hours = "179", load = "smooth", width = "1", method = "bdf";
   for (int i = 1; i < argc; ++i) {
     const std::string a = argv[i];
     if (a == "--atol-velocity" && i + 1 < argc) {
       atol_velocity = argv[++i];
     } else if (a == "--hours" && i + 1 < argc) {
       hours = argv[++i];
+    } else if (a == "--load" && i + 1 < argc) {
+      load = argv[++i];
+    } else if (a == "--width" && i + 1 < argc) {
+      width = argv[++i];
+    } else if (a == "--method" && i + 1 < argc) {
+      method = argv[++i];
     } else if (!a.empty() && a[0] != '-') {
       sizes.push_back(std::stoi(a));
     } else {
-      std::fprintf(stderr, "usage: bench_climber [N ...] [--atol-velocity V] [--hours H]\n");
+      std::fprintf(stderr, "usage: bench_climber [N ...] [--atol-velocity V] [--hours H] [--load smooth|point] [--width W] [--method M]\n");
       return 2;
     }
   }
-  if (sizes.empty()) sizes = {250, 500, 1000};
-  std::printf("climber transit 0 -> 35786 km at 200 km/h, 20 t; %s h simulated; rtol 1e-6, atol 1e-3 m, %s m/s\n",
-              hours.c_str(), atol_velocity.c_str());
+  if (sizes.empty()) sizes = {250, 500, 1000, 2000, 4000};
+  std::printf("climber transit 0 -> 35786 km at 200 km/h, 20 t; %s h simulated; rtol 1e-6, atol 1e-3 m, %s m/s; "
+              "climber load %s (half width %s elements); %s\n",
+              hours.c_str(), atol_velocity.c_str(), load.c_str(), width.c_str(), method.c_str());
   int failures = 0;
   for (int n : sizes) {
-    const Scenario sc = load_scenario_text(scenario_text(n, atol_velocity, hours), "bench_climber.yaml", {});
+    const Scenario sc = load_scenario_text(scenario_text(n, atol_velocity, hours, load, width, method), "bench_climber.yaml", {});
     const TetherModel model = build_model(sc);
     TetherSystem sys(model);
     const std::vector<double> y0 = initial_state(sys, sc.initial);
